@@ -1,0 +1,52 @@
+// Bundles every target with one small helper: the shipped bundles go to dist/, the test and
+// benchmark bundles to out/. Type-checking is `npm run typecheck` (tsc --noEmit), run before this.
+import * as esbuild from 'esbuild';
+import { readdirSync, statSync } from 'node:fs';
+import { join } from 'node:path';
+
+const production = process.argv.includes('--production');
+
+/** Every *.ts file below `dir` whose name matches `pattern`. */
+function filesBelow(dir, pattern) {
+  let found = [];
+  let entries = [];
+  try { entries = readdirSync(dir); } catch { return found; }
+  for (const name of entries) {
+    const full = join(dir, name);
+    if (statSync(full).isDirectory()) found = found.concat(filesBelow(full, pattern));
+    else if (pattern.test(name)) found.push(full);
+  }
+  return found;
+}
+
+function build(options) {
+  return esbuild.build({
+    bundle: true,
+    sourcemap: !production,
+    minify: production,
+    logLevel: 'warning',
+    target: 'es2022',
+    ...options,
+  });
+}
+
+const node = { platform: 'node', format: 'cjs', target: 'node20' };
+
+await Promise.all([
+  // The VS Code host: `vscode` is provided by the editor at run time.
+  build({ ...node, entryPoints: { extension: 'src/extension/extension.ts' }, outdir: 'dist', external: ['vscode'] }),
+  // The worker thread that runs fits off the host's event loop.
+  build({ ...node, entryPoints: { worker: 'src/extension/worker.ts' }, outdir: 'dist' }),
+  // The command line.
+  build({ ...node, entryPoints: { cli: 'src/cli/main.ts' }, outdir: 'dist', banner: { js: '#!/usr/bin/env node' } }),
+  // The panel, in the browser of the webview.
+  build({ platform: 'browser', format: 'iife', entryPoints: { webview: 'webview/main.ts' }, outdir: 'dist' }),
+  // Tests and benchmarks: one bundle per file, run by mocha / node from out/.
+  build({
+    ...node,
+    entryPoints: [...filesBelow('test', /\.ts$/), ...filesBelow('bench', /\.ts$/)],
+    outbase: '.',
+    outdir: 'out',
+    external: ['vscode', 'mocha', 'playwright-core', '@duckdb/node-api', '@vscode/test-electron'],
+  }),
+]);
