@@ -78,7 +78,15 @@ export interface MultivariateTest {
 export interface FitReport {
   /** Report format version; bump on an incompatible change. */
   version: 1;
-  source: { name: string; format: 'csv' | 'tsv' | 'parquet'; bytes: number; sha256?: string; delimiter?: string };
+  source: {
+    name: string;
+    format: 'csv' | 'tsv' | 'parquet';
+    bytes: number;
+    sha256?: string;
+    delimiter?: string;
+    /** Bytes the figures rest on when the report is provisional (only the first bytes were read); absent otherwise. */
+    bytesRead?: number;
+  };
   options: FitOptions;
   label: string;
   rows: { total: number; used: number; dropped: number; droppedMissing: number; droppedNonFinite: number; droppedRagged: number };
