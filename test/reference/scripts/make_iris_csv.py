@@ -1,9 +1,9 @@
 #!/usr/bin/python3
 """Write the outside datasets the reference suite fits, from the copies Debian's scikit-learn ships.
 
-  /usr/bin/python3 test/reference/scripts/make_iris_csv.py
+  /usr/bin/python3 test/reference/scripts/make_iris_csv.py [OUT_ROOT]
 
-Writes, relative to the repository:
+Writes, relative to the repository (or to OUT_ROOT, which the live test uses to compare bytes):
   test/fixtures/iris/iris.csv              Iris (sklearn/datasets/data/iris.csv), species named
   test/fixtures/wine/wine.csv              Wine (sklearn/datasets/data/wine_data.csv), classes named
   test/fixtures/wine/wine-ash-scaled.csv   the same Wine table with the `ash` column times 1e-5
@@ -55,22 +55,23 @@ def write_csv(path, header, rows):
         w = csv.writer(f, lineterminator='\n')
         w.writerow(header)
         w.writerows(rows)
-    print('wrote', os.path.relpath(path, REPO), len(rows), 'rows')
+    print('wrote', path, len(rows), 'rows')
 
 
 def main():
+    root = sys.argv[1] if len(sys.argv) > 1 else REPO
     d, names, body = read_shipped('iris.csv')
     assert d == 4 and names == ['setosa', 'versicolor', 'virginica'], names
-    write_csv(os.path.join(REPO, 'test', 'fixtures', 'iris', 'iris.csv'), IRIS_HEADER,
+    write_csv(os.path.join(root, 'test', 'fixtures', 'iris', 'iris.csv'), IRIS_HEADER,
               [r[:d] + [names[int(r[d])]] for r in body])
 
     d, names, body = read_shipped('wine_data.csv')
     assert d == len(WINE_FEATURES) and names == ['class_0', 'class_1', 'class_2'], names
     rows = [r[:d] + [names[int(r[d])]] for r in body]
-    write_csv(os.path.join(REPO, 'test', 'fixtures', 'wine', 'wine.csv'), WINE_FEATURES + [WINE_LABEL], rows)
+    write_csv(os.path.join(root, 'test', 'fixtures', 'wine', 'wine.csv'), WINE_FEATURES + [WINE_LABEL], rows)
     j = WINE_FEATURES.index(SCALED_COLUMN)
     scaled = [r[:j] + [repr(float(r[j]) * SCALE)] + r[j + 1:] for r in rows]
-    write_csv(os.path.join(REPO, 'test', 'fixtures', 'wine', 'wine-ash-scaled.csv'),
+    write_csv(os.path.join(root, 'test', 'fixtures', 'wine', 'wine-ash-scaled.csv'),
               WINE_FEATURES + [WINE_LABEL], scaled)
 
 
