@@ -273,7 +273,7 @@ def reference(path, label, kfolds=(), seeds=(), pca=True, box=True):
     out = {
         'versions': versions(),
         'data': {'file': os.path.basename(path), 'rows': n, 'features': features, 'labels': labels,
-                 'counts': counts.tolist()},
+                 'counts': counts.tolist(), 'classOfRow': y.tolist()},
         'eigenvalues': fig(eig_src + '; descending, first min(K−1, d)', lam.tolist()),
         'explainedRatio': fig(eig_src + '; λ_i / Σλ', (lam / lam.sum()).tolist()),
         'canonicalCorrelations': fig(eig_src + '; √(λ/(1+λ))', np.sqrt(lam / (1 + lam)).tolist()),
