@@ -1,0 +1,112 @@
+/**
+ * The fit worker (bundled to dist/worker.js): runs one analysis off the extension host's event
+ * loop. It opens the data file read-only, hashes its bytes while the analysis reads them, posts a
+ * provisional result from the first bytes of a large file, then the full one, and ends. The host
+ * cancels by terminating the thread, so nothing here needs to poll for cancellation.
+ */
+import { createHash } from 'node:crypto';
+import { createReadStream } from 'node:fs';
+import { parentPort, workerData } from 'node:worker_threads';
+import { analyze } from '../core/analyze';
+import { DataError } from '../core/errors';
+import { inspectTable } from '../core/read/index';
+import type { TableInspection } from '../core/read/types';
+import type { Progress } from '../core/source';
+import { openFileSource } from '../node/fileSource';
+import type { ColumnChoice } from '../shared/messages';
+import type { FitFailure, FitRequest, FromWorker } from './workerProtocol';
+
+const port = parentPort;
+if (!port) throw new Error('worker.ts runs only as a worker thread');
+
+function post(message: FromWorker): void {
+  port!.postMessage(message);
+}
+
+/** SHA-256 of the file's bytes, read through its own read-only stream. */
+function hashFile(path: string): Promise<string> {
+  return new Promise((resolve, reject) => {
+    const hash = createHash('sha256');
+    createReadStream(path, { flags: 'r', highWaterMark: 1 << 20 })
+      .on('data', (chunk) => hash.update(chunk))
+      .on('error', reject)
+      .on('end', () => resolve(hash.digest('hex')));
+  });
+}
+
+function columnChoices(inspection: TableInspection): ColumnChoice[] {
+  return inspection.columns.map((column) => ({ name: column.name, kind: column.kind, distinct: column.distinct }));
+}
+
+/**
+ * Maps the passes of one analysis onto [0, 1] of its bytes: the rows are read twice (moments,
+ * then scores), so each pass is one half; the inspection reads only the head and counts as zero.
+ * Posts at most every 100 ms and never goes backwards (the drop-columns policy re-reads pass 1).
+ */
+function progressPoster(phase: string): (progress: Progress) => void {
+  let lastFraction = -1;
+  let lastTime = 0;
+  return (progress) => {
+    const share = progress.bytesTotal > 0 ? Math.min(1, progress.bytesRead / progress.bytesTotal) : 1;
+    const fraction = progress.pass === 'inspect' ? 0 : progress.pass === 'moments' ? share / 2 : 0.5 + share / 2;
+    const now = Date.now();
+    if (fraction <= lastFraction || (now - lastTime < 100 && fraction < 1)) return;
+    lastFraction = fraction;
+    lastTime = now;
+    post({ type: 'progress', phase, fraction });
+  };
+}
+
+function toFailure(error: unknown): FitFailure {
+  if (error instanceof DataError) {
+    return { code: error.code, message: error.message, hint: error.hint, where: { ...error.where } };
+  }
+  const unexpected = error instanceof Error ? error : new Error(String(error));
+  return { code: 'internal', message: `Unexpected failure: ${unexpected.message}`, stack: unexpected.stack };
+}
+
+async function run(request: FitRequest): Promise<void> {
+  let source: Awaited<ReturnType<typeof openFileSource>> | undefined;
+  try {
+    source = await openFileSource(request.path);
+    const hashing = hashFile(request.path).then((sha256) => {
+      post({ type: 'hashed', sha256 });
+      return sha256;
+    });
+    hashing.catch(() => undefined); // a read failure surfaces through the analysis or the await below
+    if (source.size > request.provisionalBytes) {
+      try {
+        const quick = await analyze(source, request.options, {
+          provisionalBytes: request.provisionalBytes,
+          onProgress: progressPoster('first look'),
+        });
+        post({ type: 'result', report: quick.report, columns: columnChoices(quick.inspection) });
+      } catch (error) {
+        // The first bytes may hold one class only, or end inside a row: the full pass decides.
+        if (!(error instanceof DataError)) throw error;
+      }
+    }
+    const full = await analyze(source, request.options, { onProgress: progressPoster('analysis') });
+    full.report.source.sha256 = await hashing;
+    post({ type: 'result', report: full.report, columns: columnChoices(full.inspection) });
+  } catch (error) {
+    post({ type: 'failed', failure: toFailure(error), columns: await columnsIfReadable(source, request) });
+  } finally {
+    await source?.close();
+  }
+}
+
+/** The columns, when the table's head can still be read, so the panel can offer another label. */
+async function columnsIfReadable(
+  source: Awaited<ReturnType<typeof openFileSource>> | undefined,
+  request: FitRequest,
+): Promise<ColumnChoice[] | undefined> {
+  if (!source) return undefined;
+  try {
+    return columnChoices(await inspectTable(source, request.options.read));
+  } catch {
+    return undefined;
+  }
+}
+
+void run(workerData as FitRequest);

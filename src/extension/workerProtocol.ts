@@ -1,0 +1,32 @@
+/**
+ * Messages between the extension host and the fit worker (dist/worker.js). The worker gets one
+ * request in `workerData`, posts progress, the content hash, at most one provisional and one final
+ * result (or an error), and then ends. The host stops it with `Worker.terminate()`.
+ */
+import type { FitOptions, FitReport } from '../core/types';
+import type { ColumnChoice } from '../shared/messages';
+
+export interface FitRequest {
+  /** Local file path; the worker opens it read-only. */
+  path: string;
+  options: Partial<FitOptions>;
+  /** Analyse this many leading bytes first and post that provisional result, when the file is larger. */
+  provisionalBytes: number;
+}
+
+/** A DataError (or an unexpected failure) in a form that survives structured cloning. */
+export interface FitFailure {
+  /** DataError code, or `internal` for anything the core did not expect. */
+  code: string;
+  message: string;
+  hint?: string;
+  where?: { file?: string; line?: number; row?: number; column?: string; byteOffset?: number };
+  /** Stack trace of an unexpected failure, for the output channel. */
+  stack?: string;
+}
+
+export type FromWorker =
+  | { type: 'progress'; phase: string; fraction: number }
+  | { type: 'hashed'; sha256: string }
+  | { type: 'result'; report: FitReport; columns: ColumnChoice[] }
+  | { type: 'failed'; failure: FitFailure; columns?: ColumnChoice[] };
