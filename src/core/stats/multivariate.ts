@@ -21,37 +21,13 @@
  */
 import type { MultivariateTest } from '../types';
 import { fUpperTail } from './distributions';
+import { checkEigenvalueInput as check } from './eigenvalueInput';
 
 export type { MultivariateTest } from '../types';
 
 /** λ/(1 + λ), also for λ = ∞. */
 function ratio(lambda: number): number {
   return lambda === Infinity ? 1 : lambda / (1 + lambda);
-}
-
-interface Checked {
-  /** Eigenvalues with rounding negatives set to 0. */
-  lambda: number[];
-  /** q = K − 1 */
-  q: number;
-  /** df.res = n − K */
-  residual: number;
-  s: number;
-}
-
-function check(eigenvalues: ArrayLike<number>, p: number, K: number, n: number): Checked {
-  if (!Number.isInteger(p) || p < 1) throw new RangeError(`p must be a positive integer, got ${p}`);
-  if (!Number.isInteger(K) || K < 2) throw new RangeError(`K must be an integer ≥ 2, got ${K}`);
-  if (!Number.isInteger(n) || n <= K) throw new RangeError(`n must be an integer > K = ${K}, got ${n}`);
-  const s = Math.min(p, K - 1);
-  if (eigenvalues.length > s) throw new RangeError(`at most min(p, K − 1) = ${s} eigenvalues, got ${eigenvalues.length}`);
-  const lambda: number[] = [];
-  for (let i = 0; i < eigenvalues.length; i++) {
-    const value = eigenvalues[i];
-    if (Number.isNaN(value)) throw new RangeError(`eigenvalue ${i} is NaN`);
-    lambda.push(Math.max(0, value));
-  }
-  return { lambda, q: K - 1, residual: n - K, s };
 }
 
 /** The test with its p-value, or NaN F and p when the degrees of freedom are not positive. */
