@@ -120,13 +120,6 @@ export function unusedColumnFindings(text: readonly string[], empty: readonly st
   return found;
 }
 
-/** `ragged-rows`: rows skipped because their field count differed from the header's. */
-export function raggedRowFinding(count: number, examples: readonly CellExample[]): Finding | null {
-  if (count === 0) return null;
-  const shown = examples.slice(0, 5).map(where).join(', ');
-  return finding('ragged-rows', 'warning', `${formatCount(count)} row${count > 1 ? 's' : ''} with the wrong number of fields skipped${shown ? ` (${shown})` : ''}.`, undefined, examples.map((e) => e.row));
-}
-
 // ---- features removed by the solver -----------------------------------------------------------
 
 /** A feature the rank-revealing solve removed (structurally lda.ts's RemovedFeature). */
@@ -391,6 +384,11 @@ export function boxMSkippedFinding(reason: string): Finding {
 
 export function cvSkippedFinding(reason: string): Finding {
   return finding('cv-skipped', 'warning', `Cross-validation was not run: ${reason} Only the training (resubstitution) accuracy is shown, which overstates performance.`);
+}
+
+/** `tests-undefined`: too few rows within classes for the multivariate tests' F approximations. */
+export function testsUndefinedFinding(reason: string): Finding {
+  return finding('tests-undefined', 'warning', `${reason} Their F and p are left empty.`);
 }
 
 export function approximatePValueFinding(): Finding {

@@ -1,0 +1,8 @@
+/**
+ * Every subcommand of `scatterwise`, in the order the help lists them. A new subcommand is one file
+ * in this folder exporting a `Command`, plus one line here.
+ */
+import type { Command } from '../command';
+import { fitCommand } from './fit';
+
+export const COMMANDS: readonly Command[] = [fitCommand];

@@ -1,0 +1,198 @@
+/**
+ * Pass 1 over the rows: what every cell is (missing, not a number, infinite), which rows are used,
+ * and the per-class moments of the used rows, with constant memory.
+ *
+ * A row is used when its label is present and every feature value is a finite number; otherwise it
+ * is dropped and counted: `droppedMissing` (missing label, or a feature missing / not a number) takes
+ * precedence over `droppedNonFinite` (±∞). Alongside the moments the pass feeds the duplicate-row
+ * check, the majority vote of each feature (for the near-constant rule) and, when k-fold
+ * cross-validation may run, the fold parts of the moments.
+ *
+ * Fold assignment: folds.ts's FoldAssigner, called once per used row in file order with the class's
+ * order of first appearance among the used rows (0 for the class of the first used row, …). Pass 2
+ * replays the same calls, so no fold is stored per row.
+ */
+import { FoldMomentsAccumulator } from '../classify';
+import { FoldAssigner } from '../folds';
+import type { Moments } from '../moments';
+import { MomentsAccumulator } from '../moments';
+import type { CellExample, ScanSummary, TableInspection } from '../read/types';
+import { scanTable } from '../read/index';
+import type { ByteSource, RunControl } from '../source';
+import { DuplicateRows } from './duplicateRows';
+import { MajorityVote } from './majorityValue';
+import { PassControl } from './passControl';
+
+export interface FirstPassPlan {
+  label: number;
+  /** File positions of the features, in feature order. */
+  features: number[];
+  featureNames: string[];
+  /** Fold count when fold parts are to be collected, with the generator's seed. */
+  folds?: { count: number; seed: number };
+  /** Whether to accumulate moments (false when only the fold parts are wanted again). */
+  moments: boolean;
+}
+
+export interface FirstPassResult {
+  moments: Moments | null;
+  folds: FoldMomentsAccumulator | null;
+  /** The scan's label dictionary, in order of first appearance in the file (all rows). */
+  labels: string[];
+  /** Label ids (scan dictionary) in order of first appearance among the used rows. */
+  appearance: number[];
+  /** Data rows seen (including skipped ragged rows); with an early stop, the rows kept. */
+  rows: number;
+  used: number;
+  droppedMissing: number;
+  droppedNonFinite: number;
+  labelMissing: number;
+  /** Per feature: cells that were NaN (missing or not a number), +∞, −∞, over every row. */
+  nanCells: Float64Array;
+  positiveInfinity: Float64Array;
+  negativeInfinity: Float64Array;
+  /** The reader's summary; absent after an early stop (non-numeric cells then count as missing). */
+  summary: ScanSummary | null;
+  /** Rows after which the pass stopped early (provisional), or null when it read everything. */
+  rowLimit: number | null;
+  duplicates: DuplicateRows;
+  majority: MajorityVote;
+}
+
+/** Rows gathered before handing a block to the accumulators. */
+const BLOCK_ROWS = 4096;
+
+export async function firstPass(
+  source: ByteSource,
+  inspection: TableInspection,
+  plan: FirstPassPlan,
+  control: RunControl | undefined,
+  byteBudget?: number,
+): Promise<FirstPassResult> {
+  const d = plan.features.length;
+  const accumulator = plan.moments ? new MomentsAccumulator(plan.featureNames) : null;
+  const folds = plan.folds ? new FoldMomentsAccumulator(plan.featureNames, plan.folds.count) : null;
+  const assigner = plan.folds ? new FoldAssigner(plan.folds.count, plan.folds.seed) : null;
+  const duplicates = new DuplicateRows();
+  const majority = new MajorityVote(d);
+  const nanCells = new Float64Array(d);
+  const positiveInfinity = new Float64Array(d);
+  const negativeInfinity = new Float64Array(d);
+  let labels: readonly string[] = [];
+  const appearanceOf: number[] = []; // scan label id → order of first appearance among used rows, or -1
+  const appearance: number[] = [];
+  let rows = 0;
+  let used = 0;
+  let droppedMissing = 0;
+  let droppedNonFinite = 0;
+  let labelMissing = 0;
+  let rowLimit: number | null = null;
+
+  const blockValues = new Float64Array(BLOCK_ROWS * d);
+  const blockClasses = new Int32Array(BLOCK_ROWS);
+  const blockFolds = new Int32Array(BLOCK_ROWS);
+  let blockRows = 0;
+  const flush = (): void => {
+    if (blockRows === 0) return;
+    const values = blockValues.subarray(0, blockRows * d);
+    const classes = blockClasses.subarray(0, blockRows);
+    accumulator?.add(values, classes, blockRows, labels);
+    folds?.add(values, classes, blockRows, labels, blockFolds.subarray(0, blockRows));
+    blockRows = 0;
+  };
+
+  const pass = new PassControl('moments', control, byteBudget);
+  const summary = await pass.run(() =>
+    scanTable({
+      source,
+      inspection,
+      plan: { label: plan.label, features: plan.features },
+      control: pass.control,
+      onBatch: (batch, dictionary) => {
+        labels = dictionary;
+        const { values } = batch;
+        for (let i = 0; i < batch.rows; i++) {
+          const row = batch.firstRow + i;
+          if (rowLimit !== null && row >= rowLimit) break;
+          rows = row + 1;
+          const label = batch.labels[i]!;
+          let missing = label < 0;
+          if (missing) labelMissing++;
+          let infinite = false;
+          const offset = i * d;
+          for (let j = 0; j < d; j++) {
+            const v = values[offset + j]!;
+            if (v !== v) {
+              nanCells[j]! += 1;
+              missing = true;
+            } else if (v === Infinity) {
+              positiveInfinity[j]! += 1;
+              infinite = true;
+            } else if (v === -Infinity) {
+              negativeInfinity[j]! += 1;
+              infinite = true;
+            }
+          }
+          if (missing) {
+            droppedMissing++;
+            continue;
+          }
+          if (infinite) {
+            droppedNonFinite++;
+            continue;
+          }
+          used++;
+          let order = appearanceOf[label];
+          if (order === undefined || order < 0) {
+            while (appearanceOf.length <= label) appearanceOf.push(-1);
+            order = appearance.length;
+            appearanceOf[label] = order;
+            appearance.push(label);
+          }
+          blockValues.set(values.subarray(offset, offset + d), blockRows * d);
+          blockClasses[blockRows] = label;
+          if (assigner) blockFolds[blockRows] = assigner.foldOf(order);
+          blockRows++;
+          if (blockRows === BLOCK_ROWS) flush();
+          duplicates.add(label, values, offset, d, row, batch.lines?.[i]);
+          majority.vote(values, offset);
+        }
+        if (rowLimit === null && pass.budgetSpent) {
+          rowLimit = rows;
+          pass.stop();
+        }
+      },
+    }),
+  );
+  flush();
+  // The reader may have reached the end before it saw the stop: then nothing was left out.
+  if (summary && rowLimit !== null && summary.rows === rowLimit) rowLimit = null;
+  return {
+    moments: accumulator ? accumulator.result() : null,
+    folds,
+    labels: [...labels],
+    appearance,
+    rows: rowLimit === null && summary ? summary.rows : rows,
+    used,
+    droppedMissing,
+    droppedNonFinite,
+    labelMissing,
+    nanCells,
+    positiveInfinity,
+    negativeInfinity,
+    summary: summary ?? null,
+    rowLimit,
+    duplicates,
+    majority,
+  };
+}
+
+/** Missing cells of feature j: NaN cells that the reader did not count as non-numeric. */
+export function missingCells(result: FirstPassResult, j: number): number {
+  return result.nanCells[j]! - (result.summary?.nonNumeric[j] ?? 0);
+}
+
+/** The reader's first non-numeric examples of feature j (none after an early stop). */
+export function nonNumericExamples(result: FirstPassResult, j: number): CellExample[] {
+  return result.summary?.nonNumericExamples[j] ?? [];
+}

@@ -1,0 +1,43 @@
+/**
+ * The most frequent value of each feature when one value fills most of the rows, in two streaming
+ * passes with constant memory: pass 1 runs the Boyer–Moore majority vote (Boyer & Moore 1991, "MJRTY
+ * — a fast majority vote algorithm"), which ends on the value that fills more than half of the rows
+ * whenever there is one; pass 2 counts that candidate exactly. Enough for the near-constant rule
+ * (one value in ≥ 99% of the rows), which only a majority value can meet.
+ */
+export class MajorityVote {
+  readonly candidates: Float64Array;
+  private readonly votes: Float64Array;
+
+  constructor(d: number) {
+    this.candidates = new Float64Array(d);
+    this.votes = new Float64Array(d);
+  }
+
+  /** Pass 1: one row, `values[offset .. offset + d)`. */
+  vote(values: Float64Array, offset: number): void {
+    const d = this.candidates.length;
+    for (let j = 0; j < d; j++) {
+      const v = values[offset + j]!;
+      if (this.votes[j] === 0) {
+        this.candidates[j] = v;
+        this.votes[j] = 1;
+      } else if (this.candidates[j] === v) this.votes[j]! += 1;
+      else this.votes[j]! -= 1;
+    }
+  }
+}
+
+/** Pass 2: exact counts of each feature's candidate value. */
+export class CandidateCount {
+  readonly counts: Float64Array;
+
+  constructor(readonly candidates: Float64Array) {
+    this.counts = new Float64Array(candidates.length);
+  }
+
+  count(values: Float64Array, offset: number): void {
+    const d = this.candidates.length;
+    for (let j = 0; j < d; j++) if (values[offset + j] === this.candidates[j]) this.counts[j]! += 1;
+  }
+}

@@ -1,0 +1,173 @@
+/**
+ * Pass 2 over the rows, with the model fitted: training predictions and the confusion matrix,
+ * cross-validated predictions (exact leave-one-out by downdating, or the fold models), the list of
+ * misclassified rows, the plot sample with its discriminant and principal-component scores, the
+ * discriminant scores of every row for the caller (`--scores`), and the exact count of each
+ * feature's majority value. Rows are judged used or dropped exactly as in pass 1.
+ *
+ * A misclassified row's `posterior` is the posterior probability of the class it was predicted as.
+ */
+import type { Classifier } from '../classify';
+import { FoldAssigner } from '../folds';
+import type { LdaSolution } from '../lda';
+import { scoreRow } from '../lda';
+import type { PcaSolution } from '../pca';
+import { pcaScoreRow } from '../pca';
+import { PlotSampler } from '../plotSample';
+import { scanTable } from '../read/index';
+import type { TableInspection } from '../read/types';
+import type { ByteSource, RunControl } from '../source';
+import type { FitReport } from '../types';
+import { CandidateCount } from './majorityValue';
+import { PassControl } from './passControl';
+
+/** Discriminant scores of a batch of rows, for the caller: `rows × k`, NaN for rows not used. */
+export interface ScoreBatch {
+  /** 0-based data row of the first row; rows are consecutive. */
+  firstRow: number;
+  rows: number;
+  k: number;
+  scores: Float64Array;
+}
+
+export type CrossValidator =
+  | { kind: 'loo'; predict(x: Float64Array, trueClass: number, out: Float64Array): number }
+  | { kind: 'kfold'; classifiers: Classifier[]; seed: number }
+  | { kind: 'none' };
+
+export interface SecondPassInput {
+  source: ByteSource;
+  inspection: TableInspection;
+  label: number;
+  features: number[];
+  solution: LdaSolution;
+  pca: PcaSolution;
+  classifier: Classifier;
+  crossValidator: CrossValidator;
+  /** Scan label ids in order of first appearance among used rows (from pass 1), for the fold replay. */
+  appearance: readonly number[];
+  /** Used rows per class, in the solution's class order. */
+  classCounts: readonly number[];
+  plotQuota: readonly number[];
+  /** Indices (into the features) of the features whose values the plot sample keeps. */
+  topFeatures: number[];
+  majorityCandidates: Float64Array;
+  misclassifiedLimit: number;
+  /** Stop after this many data rows (the provisional cut of pass 1). */
+  rowLimit: number | null;
+  onScores?: (batch: ScoreBatch) => void;
+}
+
+export interface SecondPassResult {
+  confusion: number[][];
+  crossValidatedConfusion: number[][] | null;
+  misclassified: FitReport['misclassified'];
+  misclassifiedTotal: number;
+  sample: Omit<FitReport['sample'], 'topFeatures'> & { topFeatureValues: number[][] };
+  majorityCounts: Float64Array;
+}
+
+function square(K: number): number[][] {
+  return Array.from({ length: K }, () => new Array<number>(K).fill(0));
+}
+
+export async function secondPass(input: SecondPassInput, control: RunControl | undefined): Promise<SecondPassResult> {
+  const { solution, pca, classifier, crossValidator } = input;
+  const d = input.features.length;
+  const K = solution.labels.length;
+  const k = solution.eigenvalues.length;
+  const plotAxes = Math.min(k, 3);
+  const classOfLabel = new Map(solution.labels.map((label, c) => [label, c]));
+  const appearanceOrder = new Map(input.appearance.map((id, order) => [id, order]));
+  const assigner = crossValidator.kind === 'kfold' ? new FoldAssigner(crossValidator.classifiers.length, crossValidator.seed) : null;
+  const sampler = new PlotSampler(input.classCounts, input.plotQuota);
+  const majority = new CandidateCount(input.majorityCandidates);
+
+  const confusion = square(K);
+  const cvConfusion = crossValidator.kind === 'none' ? null : square(K);
+  const misclassified: FitReport['misclassified'] = [];
+  let misclassifiedTotal = 0;
+  const sample: SecondPassResult['sample'] = { total: 0, rows: [], lines: [], classIndex: [], ld: [], pc: [], topFeatureValues: [] };
+  let hasLines = true;
+
+  const posterior = new Float64Array(K);
+  const ld = new Float64Array(k);
+  const pc = new Float64Array(2);
+  let scores = new Float64Array(0);
+  let classOfId: number[] = [];
+
+  const pass = new PassControl('rows', control);
+  await pass.run(() =>
+    scanTable({
+      source: input.source,
+      inspection: input.inspection,
+      plan: { label: input.label, features: input.features },
+      control: pass.control,
+      onBatch: (batch, labels) => {
+        while (classOfId.length < labels.length) classOfId.push(classOfLabel.get(labels[classOfId.length]!) ?? -1);
+        let rows = batch.rows;
+        if (input.rowLimit !== null) rows = Math.max(0, Math.min(rows, input.rowLimit - batch.firstRow));
+        if (input.onScores && scores.length < rows * k) scores = new Float64Array(batch.rows * k);
+        if (!batch.lines) hasLines = false;
+        const { values } = batch;
+        for (let i = 0; i < rows; i++) {
+          const offset = i * d;
+          const id = batch.labels[i]!;
+          let clean = id >= 0;
+          for (let j = 0; clean && j < d; j++) {
+            const v = values[offset + j]!;
+            if (v !== v || v === Infinity || v === -Infinity) clean = false;
+          }
+          if (!clean) {
+            if (input.onScores) scores.fill(NaN, i * k, (i + 1) * k);
+            continue;
+          }
+          const truth = classOfId[id]!;
+          const x = values.subarray(offset, offset + d);
+          scoreRow(solution, x, ld);
+          if (input.onScores) scores.set(ld, i * k);
+          majority.count(values, offset);
+
+          const predicted = classifier.predict(x, posterior);
+          confusion[truth]![predicted]! += 1;
+          let judged = predicted;
+          let judgedPosterior = posterior[predicted]!;
+          if (crossValidator.kind === 'loo') {
+            judged = crossValidator.predict(x, truth, posterior);
+            judgedPosterior = posterior[judged]!;
+          } else if (crossValidator.kind === 'kfold') {
+            const fold = assigner!.foldOf(appearanceOrder.get(id)!);
+            judged = crossValidator.classifiers[fold]!.predict(x, posterior);
+            judgedPosterior = posterior[judged]!;
+          }
+          if (cvConfusion) cvConfusion[truth]![judged]! += 1;
+          const row = batch.firstRow + i;
+          const line = batch.lines?.[i];
+          if (judged !== truth) {
+            misclassifiedTotal++;
+            if (misclassified.length < input.misclassifiedLimit) {
+              const entry: FitReport['misclassified'][number] = { row, label: solution.labels[truth]!, predicted: solution.labels[judged]!, posterior: judgedPosterior };
+              if (line !== undefined) entry.line = line;
+              misclassified.push(entry);
+            }
+          }
+
+          sample.total++;
+          if (sampler.take(truth)) {
+            pcaScoreRow(pca, x, pc);
+            sample.rows.push(row);
+            sample.lines!.push(line ?? 0);
+            sample.classIndex.push(truth);
+            sample.ld.push(Array.from(ld.subarray(0, plotAxes)));
+            sample.pc.push([pc[0]!, pc[1]!]);
+            sample.topFeatureValues.push(input.topFeatures.map((j) => values[offset + j]!));
+          }
+        }
+        if (input.onScores && rows > 0) input.onScores({ firstRow: batch.firstRow, rows, k, scores: scores.subarray(0, rows * k) });
+        if (input.rowLimit !== null && batch.firstRow + batch.rows >= input.rowLimit) pass.stop();
+      },
+    }),
+  );
+  if (!hasLines) delete sample.lines;
+  return { confusion, crossValidatedConfusion: cvConfusion, misclassified, misclassifiedTotal, sample, majorityCounts: majority.counts };
+}
