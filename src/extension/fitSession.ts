@@ -136,18 +136,22 @@ export class FitSession implements vscode.Disposable {
   /** Starts a fit with the current settings and the panel's options; a fit already running stops. */
   run(): void {
     if (this.disposed) return;
+    const previous = this.job;
     this.cancel('superseded');
     const generation = ++this.generation;
     const settings = readSettings();
     for (const problem of settings.problems) this.services.output.warn(problem);
     this.requested = { ...settings.options, ...this.overrides };
     this.latest = {};
-    void this.start(generation).catch((error: unknown) => {
+    void this.start(generation, previous?.ended).catch((error: unknown) => {
       if (generation === this.generation) this.fail({ code: 'internal', message: String(error), stack: error instanceof Error ? error.stack : undefined });
     });
   }
 
-  private async start(generation: number): Promise<void> {
+  private async start(generation: number, previousEnded?: Promise<unknown>): Promise<void> {
+    // One worker per file at a time: the replaced one exits first (terminating takes milliseconds).
+    await previousEnded;
+    if (generation !== this.generation) return;
     if (this.uri.scheme !== 'file') {
       this.fail({
         code: 'not-a-local-file',

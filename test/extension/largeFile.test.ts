@@ -1,0 +1,136 @@
+/**
+ * The worker architecture on a generated 200 MB table (written into os.tmpdir(), removed after):
+ * closing the editor, a new request and the cancel command each stop the running fit, and the
+ * host's event loop stays responsive while a fit runs. Invented data: pump vibration readings.
+ */
+import * as assert from 'node:assert/strict';
+import { promises as fs } from 'node:fs';
+import * as os from 'node:os';
+import * as path from 'node:path';
+import { monitorEventLoopDelay } from 'node:perf_hooks';
+import * as vscode from 'vscode';
+import type { ProgressMessage, ToPanel } from '../../src/shared/messages';
+import {
+  EDITOR_VIEW_TYPE,
+  closeAllEditors,
+  isError,
+  isFinalResult,
+  isProvisionalResult,
+  nextMessage,
+  openAndWait,
+  scatterwise,
+  waitUntil,
+} from './helpers';
+
+const TARGET_BYTES = 200 * 1024 * 1024;
+const FAULTS = ['healthy', 'impeller-wear', 'cavitation', 'bearing-defect'];
+const FEATURES = ['rms_velocity', 'kurtosis', 'crest_factor', 'band_1x', 'band_2x', 'acoustic_db', 'centroid_hz', 'temperature', 'flow', 'suction'];
+
+/** Writes about `bytes` of CSV: four classes with shifted means, from a seeded generator. */
+async function writeTable(file: string, bytes: number): Promise<void> {
+  let state = 0x9e3779b9;
+  const uniform = (): number => {
+    // xorshift32: small, seeded, the same table on every run.
+    state ^= state << 13;
+    state ^= state >>> 17;
+    state ^= state << 5;
+    return (state >>> 0) / 4294967296;
+  };
+  const handle = await fs.open(file, 'w');
+  try {
+    let written = 0;
+    await handle.write(`${FEATURES.join(',')},fault\n`);
+    while (written < bytes) {
+      const lines: string[] = [];
+      for (let row = 0; row < 20_000; row++) {
+        const fault = Math.floor(uniform() * FAULTS.length);
+        const cells = FEATURES.map((_, feature) => (((feature * (fault + 1)) % 7) * 0.4 + uniform() + uniform() + uniform()).toFixed(4));
+        lines.push(`${cells.join(',')},${FAULTS[fault]}`);
+      }
+      const chunk = lines.join('\n') + '\n';
+      await handle.write(chunk);
+      written += chunk.length;
+    }
+  } finally {
+    await handle.close();
+  }
+}
+
+const isAnalysisProgress = (message: ToPanel): message is ProgressMessage =>
+  message.type === 'progress' && message.phase === 'analysis' && message.fraction > 0;
+
+describe('a 200 MB table', function () {
+  this.timeout(300_000);
+  let folder: string;
+  let uri: vscode.Uri;
+
+  before(async () => {
+    folder = await fs.mkdtemp(path.join(os.tmpdir(), 'scatterwise-large-'));
+    const file = path.join(folder, 'fleet-large.csv');
+    const started = Date.now();
+    await writeTable(file, TARGET_BYTES);
+    uri = vscode.Uri.file(file);
+    console.log(`      generated ${((await fs.stat(file)).size / 1048576).toFixed(0)} MiB in ${Date.now() - started} ms`);
+  });
+  after(async () => {
+    await closeAllEditors();
+    await fs.rm(folder, { recursive: true, force: true });
+  });
+
+  it('closing the editor stops the running fit: the worker exits and no result is posted', async () => {
+    const api = await scatterwise();
+    const skip = api.messagesFor(uri).length;
+    await vscode.commands.executeCommand('vscode.openWith', uri, EDITOR_VIEW_TYPE);
+    await nextMessage(api, uri, isAnalysisProgress, 60_000, skip);
+    assert.ok(!api.messagesFor(uri).slice(skip).some(isFinalResult), 'still running when closed');
+    assert.ok(api.workerCount() > 0);
+    await closeAllEditors();
+    const closedAt = api.messagesFor(uri).length;
+    await waitUntil(() => api.workerCount() === 0, 5_000, 'the worker to exit');
+    await new Promise((resolve) => setTimeout(resolve, 1000));
+    assert.ok(!api.messagesFor(uri).slice(closedAt).some((message) => message.type === 'result'), 'no result after closing');
+  });
+
+  it('a new request for the same file replaces the running fit, and cancel stops it', async () => {
+    const api = await scatterwise();
+    const skip = api.messagesFor(uri).length;
+    await vscode.commands.executeCommand('vscode.openWith', uri, EDITOR_VIEW_TYPE);
+    await nextMessage(api, uri, isAnalysisProgress, 60_000, skip);
+    let most = 0;
+    const sampler = setInterval(() => (most = Math.max(most, api.workerCount())), 5);
+    try {
+      assert.ok(api.deliver(uri, { type: 'refit', options: { solver: 'auto', priors: 'uniform', cv: 'none', missing: 'drop-rows' } }));
+      const refitAt = api.messagesFor(uri).length;
+      await nextMessage(api, uri, isAnalysisProgress, 60_000, refitAt);
+      assert.ok(api.deliver(uri, { type: 'command', command: 'cancel' }));
+      const cancelled = await nextMessage(api, uri, isError, 10_000, refitAt);
+      assert.equal(cancelled.code, 'cancelled');
+      assert.equal(cancelled.options?.priors, 'uniform', 'the panel keeps the options it asked for');
+      await waitUntil(() => api.workerCount() === 0, 5_000, 'the worker to exit');
+      assert.ok(!api.messagesFor(uri).slice(skip).some(isFinalResult), 'neither fit finished');
+    } finally {
+      clearInterval(sampler);
+    }
+    assert.equal(most, 1, 'never two workers for one file');
+    await closeAllEditors();
+  });
+
+  it('the host event loop stays responsive during a full fit (p99 delay < 50 ms)', async () => {
+    const api = await scatterwise();
+    const delay = monitorEventLoopDelay({ resolution: 10 });
+    delay.enable();
+    const started = Date.now();
+    const answer = await openAndWait(api, uri, 240_000);
+    delay.disable();
+    const seconds = (Date.now() - started) / 1000;
+    assert.ok(isFinalResult(answer), answer.type === 'error' ? answer.message : 'a result');
+    assert.ok(api.messagesFor(uri).some(isProvisionalResult), 'a provisional answer came first');
+    const p99 = delay.percentile(99) / 1e6;
+    const max = delay.max / 1e6;
+    console.log(
+      `      fit of ${(answer.report.source.bytes / 1048576).toFixed(0)} MiB, ${answer.report.rows.total} rows in ${seconds.toFixed(1)} s; ` +
+        `host event-loop delay p99 ${p99.toFixed(1)} ms, max ${max.toFixed(1)} ms`,
+    );
+    assert.ok(p99 < 50, `p99 event-loop delay ${p99.toFixed(1)} ms`);
+  });
+});
