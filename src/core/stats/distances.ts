@@ -1,0 +1,48 @@
+/**
+ * Mahalanobis distances between class centroids (Mahalanobis 1936, Proc. Natl. Inst. Sci. India 2):
+ *   D_ij = sqrt((m_i − m_j)ᵀ Σ⁻¹ (m_i − m_j)),
+ * usually under the pooled within-class covariance Σ = S_W/(n − K) (or a shrunk version of it).
+ *
+ * With Σ = L Lᵀ (Cholesky), D_ij = ‖L⁻¹m_i − L⁻¹m_j‖: K triangular solves, no inverse is formed. The
+ * centroids are first centred on their plain average, so that a large common offset of the features
+ * cancels before the solve instead of after it.
+ */
+import { cholesky, solveLower } from '../linalg';
+
+/**
+ * @param means class centroids, K × p row-major
+ * @param covariance p × p symmetric positive definite (row-major, full)
+ * @returns K × K symmetric matrix of distances with a zero diagonal
+ * @throws RangeError when `covariance` is not positive definite (a caller error: pass the
+ *   covariance of the features the discriminant analysis kept)
+ */
+export function centroidMahalanobis(means: Float64Array, covariance: Float64Array, K: number, p: number): number[][] {
+  if (means.length !== K * p || covariance.length !== p * p) {
+    throw new RangeError(`means must be K × p = ${K} × ${p} and covariance p × p`);
+  }
+  const { factor, positiveDefinite, failedAt } = cholesky(covariance, p);
+  if (!positiveDefinite) {
+    throw new RangeError(`the covariance matrix is not positive definite (Cholesky pivot ${failedAt} is not positive)`);
+  }
+  const centre = new Float64Array(p);
+  for (let i = 0; i < K; i++) for (let j = 0; j < p; j++) centre[j] += means[i * p + j] / K;
+  const whitened: Float64Array[] = [];
+  for (let i = 0; i < K; i++) {
+    const z = new Float64Array(p);
+    for (let j = 0; j < p; j++) z[j] = means[i * p + j] - centre[j];
+    solveLower(factor, p, z);
+    whitened.push(z);
+  }
+  const distances = Array.from({ length: K }, () => new Array<number>(K).fill(0));
+  for (let i = 0; i < K; i++) {
+    for (let k = i + 1; k < K; k++) {
+      let sum = 0;
+      for (let j = 0; j < p; j++) {
+        const difference = whitened[i][j] - whitened[k][j];
+        sum += difference * difference;
+      }
+      distances[i][k] = distances[k][i] = Math.sqrt(sum);
+    }
+  }
+  return distances;
+}
