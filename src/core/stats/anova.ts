@@ -14,6 +14,8 @@
  * "No variance" means at most the rounding level of the data: a sum of squares ≤ n·(8·ε·|m|_max)²,
  * |m|_max the largest absolute class mean of that feature, since sums of squares of values of that
  * size cannot be resolved more finely.
+ * With no residual degrees of freedom (n = K: one row per class) the test is undefined: F and p are
+ * NaN for every feature and η² is still given, as a description.
  */
 import { fUpperTail } from './distributions';
 
@@ -24,7 +26,7 @@ export interface UnivariateTest {
 }
 
 /**
- * @param counts class sizes n_i, length K ≥ 2, Σ n_i > K
+ * @param counts class sizes n_i ≥ 1, length K ≥ 2
  * @param means class means, K × d row-major
  * @param withinDiagonal diagonal of the within-class scatter S_W (sums of squares, not variances), length d
  * @param d number of features
@@ -35,7 +37,7 @@ export function univariateAnova(counts: ArrayLike<number>, means: Float64Array, 
   let n = 0;
   for (let i = 0; i < K; i++) n += counts[i];
   if (K < 2) throw new RangeError(`univariate ANOVA needs at least two classes, got ${K}`);
-  if (!(n > K)) throw new RangeError(`univariate ANOVA needs more rows than classes (n = ${n}, K = ${K})`);
+  if (!(n >= K)) throw new RangeError(`univariate ANOVA needs at least one row per class (n = ${n}, K = ${K})`);
   if (means.length !== K * d || withinDiagonal.length !== d) {
     throw new RangeError(`means must be K × d = ${K} × ${d} and withinDiagonal of length ${d}`);
   }
@@ -57,6 +59,10 @@ export function univariateAnova(counts: ArrayLike<number>, means: Float64Array, 
       between += counts[i] * deviation * deviation;
     }
     const within = withinDiagonal[j];
+    if (df2 === 0) {
+      results.push({ F: NaN, p: NaN, etaSquared: between + within > 0 ? between / (between + within) : 0 });
+      continue;
+    }
     const rounding = n * (8 * Number.EPSILON * largest) ** 2;
     if (within <= rounding) {
       results.push(between <= rounding ? { F: 0, p: 1, etaSquared: 0 } : { F: Infinity, p: 0, etaSquared: 1 });

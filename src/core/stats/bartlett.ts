@@ -9,8 +9,8 @@
  * Entry 0 is Bartlett's χ² version of Wilks' test: χ²_0 = −(n − 1 − (p + K)/2) ln Λ.
  *
  * `eigenvalues` are the nonzero eigenvalues of S_W⁻¹ S_B, descending (at most s = min(p, K − 1));
- * one entry per eigenvalue given. p = ∞ cannot occur; λ = ∞ gives χ² = ∞, p = 0. If the factor
- * n − 1 − (p + K)/2 is not positive (only when n − K < p, see `multivariateTestIssue`) χ² and p are NaN.
+ * one entry per eigenvalue given. λ = ∞ gives χ² = ∞, p = 0. When n − K < p (S_W singular, see
+ * `multivariateTestIssue`) χ² and p are NaN.
  */
 import { chiSquareUpperTail } from './distributions';
 import { checkEigenvalueInput } from './eigenvalueInput';
@@ -22,7 +22,7 @@ export interface SequentialTest {
 }
 
 export function bartlettSequential(eigenvalues: ArrayLike<number>, p: number, K: number, n: number): SequentialTest[] {
-  const { lambda } = checkEigenvalueInput(eigenvalues, p, K, n);
+  const { lambda, defined } = checkEigenvalueInput(eigenvalues, p, K, n);
   const factor = n - 1 - (p + K) / 2;
   const tests: SequentialTest[] = [];
   // Sums from the smallest eigenvalue up, so that each tail sum is accumulated once.
@@ -34,7 +34,7 @@ export function bartlettSequential(eigenvalues: ArrayLike<number>, p: number, K:
   }
   for (let j = 0; j < lambda.length; j++) {
     const df = (p - j) * (K - 1 - j);
-    if (!(factor > 0)) {
+    if (!defined || !(factor > 0)) {
       tests.push({ chi2: NaN, df, p: NaN });
       continue;
     }

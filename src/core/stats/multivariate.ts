@@ -15,9 +15,10 @@
  *
  * Inputs are the caller's: `eigenvalues` may hold fewer than s values (the rest are zero, e.g. when
  * S_B has lower rank) and tiny negative values, which can only be rounding of a zero, count as 0.
- * When an approximation has no positive degrees of freedom (possible only when n − K < p, i.e. the
- * within-class scatter cannot be of full rank) its F and p are NaN, as R gives NA; see
- * `multivariateTestIssue` for the reason to show.
+ * When n − K < p (the within-class scatter cannot be of full rank; R's summary.manova refuses) or no
+ * feature is left (p = 0), the statistic is still returned but F and p are NaN; so are they when an
+ * approximation has no positive degrees of freedom (R gives NA). `multivariateTestIssue` gives the
+ * reason to show.
  */
 import type { MultivariateTest } from '../types';
 import { fUpperTail } from './distributions';
@@ -30,18 +31,20 @@ function ratio(lambda: number): number {
   return lambda === Infinity ? 1 : lambda / (1 + lambda);
 }
 
-/** The test with its p-value, or NaN F and p when the degrees of freedom are not positive. */
-function finish(statistic: number, F: number, df1: number, df2: number): MultivariateTest {
-  if (!(df1 > 0 && df2 > 0) || Number.isNaN(F)) return { statistic, F: NaN, df1, df2, p: NaN };
+/** The test with its p-value, or NaN F and p when undefined or the degrees of freedom are not positive. */
+function finish(defined: boolean, statistic: number, F: number, df1: number, df2: number): MultivariateTest {
+  if (!defined || !(df1 > 0 && df2 > 0) || Number.isNaN(F)) return { statistic, F: NaN, df1, df2, p: NaN };
   return { statistic, F, df1, df2, p: fUpperTail(F, df1, df2) };
 }
 
 /**
  * Why the tests cannot be computed for p features, K classes and n rows, or null when they can:
  * with n − K < p the within-class scatter is singular and the F approximations lose their degrees of
- * freedom. (K < 2 or n ≤ K are caller errors, rejected by the test functions themselves.)
+ * freedom; with p = 0 there is nothing to test. (K < 2 and n < K are caller errors, rejected by the
+ * test functions themselves.)
  */
 export function multivariateTestIssue(p: number, K: number, n: number): string | null {
+  if (p === 0) return 'No feature is left to test, so the multivariate tests are undefined.';
   if (n - K < p) {
     return `${n} rows in ${K} classes leave ${n - K} residual degrees of freedom, fewer than the ${p} features: the within-class scatter is singular and the multivariate tests are undefined.`;
   }
@@ -50,7 +53,7 @@ export function multivariateTestIssue(p: number, K: number, n: number): string |
 
 /** Wilks' Λ = Π 1/(1 + λ_i) with Rao's F; R's `stats:::Wilks`. */
 export function wilks(eigenvalues: ArrayLike<number>, p: number, K: number, n: number): MultivariateTest {
-  const { lambda, q, residual } = check(eigenvalues, p, K, n);
+  const { lambda, q, residual, defined } = check(eigenvalues, p, K, n);
   // In logarithms, so that many large λ neither underflow Λ nor lose Λ^(−1/t) − 1 to cancellation.
   let logInverse = 0; // −ln Λ
   for (const l of lambda) logInverse += Math.log1p(l);
@@ -62,12 +65,12 @@ export function wilks(eigenvalues: ArrayLike<number>, p: number, K: number, n: n
   const df1 = p * q;
   const df2 = tmp1 * t - 2 * tmp2;
   const F = (Math.expm1(logInverse / t) * df2) / df1;
-  return finish(statistic, F, df1, df2);
+  return finish(defined, statistic, F, df1, df2);
 }
 
 /** Pillai's trace V = Σ λ/(1 + λ); R's `stats:::Pillai`. */
 export function pillai(eigenvalues: ArrayLike<number>, p: number, K: number, n: number): MultivariateTest {
-  const { lambda, q, residual, s } = check(eigenvalues, p, K, n);
+  const { lambda, q, residual, s, defined } = check(eigenvalues, p, K, n);
   let statistic = 0;
   // s − V = Σ 1/(1 + λ) over the s eigenvalues (missing ones are 0): no cancellation when V ≈ s.
   let complement = s - lambda.length;
@@ -80,12 +83,12 @@ export function pillai(eigenvalues: ArrayLike<number>, p: number, K: number, n: 
   const tmp1 = 2 * m + s + 1;
   const tmp2 = 2 * nHalf + s + 1;
   const F = complement === 0 ? Infinity : ((tmp2 / tmp1) * statistic) / complement;
-  return finish(statistic, F, s * tmp1, s * tmp2);
+  return finish(defined, statistic, F, s * tmp1, s * tmp2);
 }
 
 /** Hotelling–Lawley trace U = Σ λ; R's `stats:::HL`. */
 export function hotellingLawley(eigenvalues: ArrayLike<number>, p: number, K: number, n: number): MultivariateTest {
-  const { lambda, q, residual, s } = check(eigenvalues, p, K, n);
+  const { lambda, q, residual, s, defined } = check(eigenvalues, p, K, n);
   let statistic = 0;
   for (const l of lambda) statistic += l;
   const m = 0.5 * (Math.abs(p - q) - 1);
@@ -93,14 +96,14 @@ export function hotellingLawley(eigenvalues: ArrayLike<number>, p: number, K: nu
   const tmp1 = 2 * m + s + 1;
   const tmp2 = 2 * (s * nHalf + 1);
   const F = (tmp2 * statistic) / s / s / tmp1;
-  return finish(statistic, F, s * tmp1, tmp2);
+  return finish(defined, statistic, F, s * tmp1, tmp2);
 }
 
 /** Roy's largest root θ = λ_1 with the F upper bound (its p is a lower bound); R's `stats:::Roy`. */
 export function roy(eigenvalues: ArrayLike<number>, p: number, K: number, n: number): MultivariateTest {
-  const { lambda, q, residual } = check(eigenvalues, p, K, n);
+  const { lambda, q, residual, defined } = check(eigenvalues, p, K, n);
   const statistic = lambda.length === 0 ? 0 : Math.max(...lambda);
   const tmp1 = Math.max(p, q);
   const tmp2 = residual - tmp1 + q;
-  return finish(statistic, (tmp2 * statistic) / tmp1, tmp1, tmp2);
+  return finish(defined, statistic, (tmp2 * statistic) / tmp1, tmp1, tmp2);
 }

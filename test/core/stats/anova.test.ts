@@ -62,9 +62,15 @@ describe('stats/anova', () => {
     });
   });
 
+  it('one row per class (no residual degrees of freedom): F and p NaN, η² still described', () => {
+    const [t] = univariateAnova([1, 1, 1], Float64Array.from([1, 2, 4]), Float64Array.from([0]), 1);
+    assert.ok(Number.isNaN(t.F) && Number.isNaN(t.p));
+    assert.equal(t.etaSquared, 1);
+  });
+
   it('rejects caller errors', () => {
     assert.throws(() => univariateAnova([5], Float64Array.from([1]), Float64Array.from([1]), 1), RangeError);
-    assert.throws(() => univariateAnova([1, 1], Float64Array.from([1, 2]), Float64Array.from([1]), 1), RangeError);
+    assert.throws(() => univariateAnova([1, 0], Float64Array.from([1, 2]), Float64Array.from([1]), 1), RangeError);
     assert.throws(() => univariateAnova([3, 3], Float64Array.from([1, 2, 3]), Float64Array.from([1]), 1), RangeError);
   });
 });

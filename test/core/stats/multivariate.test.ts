@@ -128,14 +128,36 @@ describe('stats/multivariate', () => {
       const issue = multivariateTestIssue(10, 3, 8);
       assert.ok(issue && issue.includes('5 residual degrees of freedom') && issue.includes('10 features'), issue ?? 'null');
       assert.equal(multivariateTestIssue(4, 3, 150), null);
-      const t = hotellingLawley([3, 1], 10, 3, 8);
-      assert.ok(Number.isNaN(t.F) && Number.isNaN(t.p));
+      for (const name of Object.keys(tests) as TestName[]) {
+        const t = tests[name]([3, 1], 10, 3, 8);
+        assert.ok(Number.isNaN(t.F) && Number.isNaN(t.p), name);
+        assert.ok(Number.isFinite(t.statistic), name);
+      }
+    });
+
+    it('one row per class, or no feature left: undefined (NaN F and p), never a throw', () => {
+      assert.ok(multivariateTestIssue(2, 6, 6)?.includes('0 residual degrees of freedom'));
+      assert.ok(multivariateTestIssue(0, 3, 50)?.includes('No feature'));
+      for (const name of Object.keys(tests) as TestName[]) {
+        for (const t of [tests[name]([1.5, 0.2], 2, 6, 6), tests[name]([], 0, 3, 50)]) {
+          assert.ok(Number.isNaN(t.F) && Number.isNaN(t.p), `${name}: ${JSON.stringify(t)}`);
+        }
+      }
+      assert.equal(wilks([], 0, 3, 50).statistic, 1);
+    });
+
+    it('with n − K = p exactly the tests are defined (Hotelling–Lawley may still lack df, as in R)', () => {
+      assert.equal(multivariateTestIssue(4, 3, 7), null);
+      const t = wilks([2, 0.5], 4, 3, 7);
+      assert.ok(Number.isFinite(t.F) && t.p > 0 && t.p < 1);
+      // HL's den df 2(s·(n − K − p − 1)/2 + 1) = 2(2·(−½) + 1) = 0 here: R's HL gives NA.
+      assert.ok(Number.isNaN(hotellingLawley([2, 0.5], 4, 3, 7).p));
     });
 
     it('rejects caller errors', () => {
       assert.throws(() => wilks([1], 3, 1, 50), RangeError);
-      assert.throws(() => wilks([1], 0, 3, 50), RangeError);
-      assert.throws(() => wilks([1], 3, 3, 3), RangeError);
+      assert.throws(() => wilks([], -1, 3, 50), RangeError);
+      assert.throws(() => wilks([1], 3, 3, 2), RangeError);
       assert.throws(() => wilks([1, 2, 3], 2, 5, 50), RangeError);
       assert.throws(() => pillai([NaN], 2, 5, 50), RangeError);
     });
