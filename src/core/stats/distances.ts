@@ -12,18 +12,18 @@ import { cholesky, solveLower } from '../linalg';
 /**
  * @param means class centroids, K × p row-major
  * @param covariance p × p symmetric positive definite (row-major, full)
- * @returns K × K symmetric matrix of distances with a zero diagonal
- * @throws RangeError when `covariance` is not positive definite (a caller error: pass the
- *   covariance of the features the discriminant analysis kept)
+ * @returns K × K symmetric matrix of distances with a zero diagonal. When `covariance` is not
+ *   positive definite (Cholesky meets a non-positive pivot; e.g. no variance within classes at all)
+ *   the distances are undefined and every off-diagonal entry is NaN, so that thin data never stop
+ *   the analysis; pass the covariance of the features the discriminant analysis kept.
+ * @throws RangeError when the array lengths do not match K and p (a caller error)
  */
 export function centroidMahalanobis(means: Float64Array, covariance: Float64Array, K: number, p: number): number[][] {
   if (means.length !== K * p || covariance.length !== p * p) {
     throw new RangeError(`means must be K × p = ${K} × ${p} and covariance p × p`);
   }
-  const { factor, positiveDefinite, failedAt } = cholesky(covariance, p);
-  if (!positiveDefinite) {
-    throw new RangeError(`the covariance matrix is not positive definite (Cholesky pivot ${failedAt} is not positive)`);
-  }
+  const { factor, positiveDefinite } = cholesky(covariance, p);
+  if (!positiveDefinite) return Array.from({ length: K }, (_, i) => Array.from({ length: K }, (_, j) => (i === j ? 0 : NaN)));
   const centre = new Float64Array(p);
   for (let i = 0; i < K; i++) for (let j = 0; j < p; j++) centre[j] += means[i * p + j] / K;
   const whitened: Float64Array[] = [];

@@ -68,7 +68,14 @@ describe('stats/distances', () => {
     }
   });
 
-  it('rejects a covariance that is not positive definite', () => {
-    assert.throws(() => centroidMahalanobis(Float64Array.from([0, 0, 1, 1]), Float64Array.from([1, 1, 1, 1]), 2, 2), RangeError);
+  it('a covariance that is not positive definite gives NaN distances, not a throw', () => {
+    const singular = centroidMahalanobis(Float64Array.from([0, 0, 1, 1]), Float64Array.from([1, 1, 1, 1]), 2, 2);
+    assert.deepEqual(singular.map((row) => row.map((v) => (Number.isNaN(v) ? 'NaN' : v))), [[0, 'NaN'], ['NaN', 0]]);
+    const zero = centroidMahalanobis(Float64Array.from([0, 1]), Float64Array.from([0]), 2, 1);
+    assert.ok(Number.isNaN(zero[0][1]));
+  });
+
+  it('rejects arrays that do not match K and p', () => {
+    assert.throws(() => centroidMahalanobis(Float64Array.from([0, 0, 1]), Float64Array.from([1, 0, 0, 1]), 2, 2), RangeError);
   });
 });
