@@ -2,7 +2,7 @@
  * The reader contract: `inspect` looks at the head of a source and describes its columns;
  * `scan` streams the chosen columns as row batches in one pass with bounded memory.
  */
-import type { ByteSource, RunControl } from '../source';
+import type { ByteSource, Progress, RunControl } from '../source';
 
 export type SourceFormat = 'csv' | 'tsv' | 'parquet';
 
@@ -59,6 +59,16 @@ export interface TableInspection {
   splittable: boolean;
   /** The options in force after sniffing, to pass to `scan`. */
   options: Required<Pick<ReadOptions, 'missingTokens'>> & ReadOptions;
+  /** What the reader noticed while inspecting (renamed duplicate or blank header names, nested Parquet columns…); `scan` repeats them in its summary. */
+  notes?: ReaderNote[];
+}
+
+/** A finding the reader itself makes. */
+export interface ReaderNote {
+  code: string;
+  severity: 'info' | 'warning' | 'error';
+  message: string;
+  columns?: string[];
 }
 
 /** Which columns to stream: the label and the features, by 0-based file position. */
@@ -100,7 +110,7 @@ export interface ScanSummary {
   raggedRows: number;
   raggedExamples: CellExample[];
   /** Findings the reader itself makes (Parquet INT64 precision loss, nested columns ignored, …). */
-  notes: { code: string; severity: 'info' | 'warning' | 'error'; message: string; columns?: string[] }[];
+  notes: ReaderNote[];
 }
 
 /** A byte range of a text source for a parallel scan; the reader aligns it to row starts. */
@@ -118,4 +128,6 @@ export interface ScanRequest {
   control?: RunControl;
   /** Text formats: scan only rows that start inside this range. */
   range?: ByteRange;
+  /** Which pass of the caller this scan is, for its progress events; default `rows`. */
+  pass?: Progress['pass'];
 }
