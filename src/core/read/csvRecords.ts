@@ -40,7 +40,7 @@ function csvErrorToDataError(error: unknown, file: string, recordLines: readonly
   const context = error as unknown as { records?: number; index?: number };
   const line = recordLines[Math.min(context.records ?? 0, recordLines.length - 1)] ?? 1;
   const fieldIndex = context.index;
-  const column = fieldIndex === undefined ? undefined : (columnNames?.[fieldIndex] ?? `column ${fieldIndex + 1}`);
+  const column = fieldIndex === undefined ? undefined : (columnNames?.[fieldIndex] ?? `column_${fieldIndex + 1}`);
   const where = `${file}, line ${line}${column !== undefined ? `, column ${column}` : ''}`;
   switch (error.code) {
     case 'CSV_QUOTE_NOT_CLOSED':

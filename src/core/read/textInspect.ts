@@ -6,7 +6,7 @@ import { DataError } from '../errors';
 import type { ByteSource, RunControl } from '../source';
 import { CELL_MISSING, CELL_NUMBER, type CellRules } from './cellValue';
 import { ColumnSample } from './columnSample';
-import { parseCsvRecords } from './csvRecords';
+import { parseCsvRecords, type CsvDialect } from './csvRecords';
 import { headerNames } from './headerNames';
 import { PassProgress } from './progress';
 import { readCopy } from './readBytes';
@@ -112,7 +112,7 @@ export async function inspectDelimitedText(
   const resolved: ReadOptions = { ...options, format: resolvedFormat, delimiter };
   checkTextOptions(file, resolved);
   const rules = cellRulesFor(resolved);
-  const parsed = parseCsvRecords(text, { delimiter, comment: options.comment }, file, records.lines);
+  const parsed = parseHead(text, head, start, records, { delimiter, comment: options.comment }, file, options.header);
   if (parsed.length === 0) throw emptyFile(file);
   const header = options.header ?? detectHeader(parsed, rules);
   const body = header ? parsed.slice(1) : parsed;
@@ -143,6 +143,25 @@ export async function inspectDelimitedText(
     options: { ...resolved, header, missingTokens: options.missingTokens ?? DEFAULT_MISSING_TOKENS },
     notes: named.notes,
   };
+}
+
+/**
+ * The head's records. When csv-parse rejects a later record, the error is raised again with the
+ * first record's cells as column names (unless the caller said there is no header).
+ */
+function parseHead(text: string, head: Uint8Array, start: number, records: HeadRecords, dialect: CsvDialect, file: string, header: boolean | undefined): string[][] {
+  try {
+    return parseCsvRecords(text, dialect, file, records.lines);
+  } catch (error) {
+    if (!(error instanceof DataError) || header === false || records.ends.length < 2 || (error.where.line ?? 0) <= records.lines[0]) throw error;
+    let names: string[];
+    try {
+      names = parseCsvRecords(new TextDecoder().decode(head.subarray(start, records.ends[0])), dialect, file, records.lines)[0];
+    } catch {
+      throw error;
+    }
+    return parseCsvRecords(text, dialect, file, records.lines, names);
+  }
 }
 
 function summarizeColumn(name: string, index: number, rows: readonly string[][], rules: CellRules) {

@@ -472,7 +472,7 @@ class DelimitedTextScanner {
     const expected = this.columnCount;
     const list = this.raggedExamples.map((example, i) => `line ${example.line} (${this.raggedFieldCounts[i]} fields)`).join(', ');
     const first = this.raggedExamples[0];
-    const more = this.raggedRows > this.raggedExamples.length ? ' and more' : '';
+    const more = this.raggedRows >= EXAMPLES ? ', perhaps more' : '';
     return new DataError(
       'ragged-row',
       `${this.file}: rows with a different number of fields than the ${expected} columns of the header: ${list}${more}.`,
