@@ -5,11 +5,16 @@
  * by the target language's own grammar:
  *
  * - Python 3 string literals (The Python Language Reference, §2.4.1 "String and Bytes literals").
- * - R string literals (R Language Definition, §10.3.1 "Constants"); non-ASCII characters are
- *   written as `\u{…}` / `\U{…}` escapes so the script means the same in any locale.
+ * - R string literals (R Language Definition, §10.3.1 "Constants"); control and non-ASCII
+ *   characters are written as `\u{…}` / `\U{…}` escapes (R refuses to mix them with `\x` escapes
+ *   in one literal) so the script means the same in any locale.
  * - SQL identifiers and string literals per dialect: doubled quote characters in PostgreSQL,
  *   DuckDB, SQLite and ANSI SQL (ISO/IEC 9075-2, §5.3 "<literal>", §5.4 "<delimited identifier>");
- *   Spark SQL uses backtick identifiers and backslash escapes inside string literals.
+ *   Spark SQL uses backtick identifiers and backslash escapes inside string literals. Control
+ *   characters inside literals are escaped too (line-based shells such as sqlite3 drop a carriage
+ *   return before a line feed): `E'\r'` in PostgreSQL, `char(13)` / `chr(13)` concatenated in SQLite
+ *   and DuckDB, `U&'\000D'` in ANSI SQL. Identifiers have no escape syntax in SQLite, DuckDB and
+ *   Spark, so a control character in a column name stays raw there.
  *
  * Characters that are invisible or reorder text (control characters, bidirectional overrides,
  * line/paragraph separators, byte-order marks) are always escaped, so a script reads as it runs.
@@ -77,8 +82,7 @@ export function rString(text: string): string {
     else if (ch === '\t') out += '\\t';
     else if (code === 0 || (code >= 0xd800 && code <= 0xdfff)) {
       throw new DataError('unrepresentable-name', `The name ${JSON.stringify(text)} holds a character R strings cannot hold (U+${hex(code, 4).toUpperCase()}).`, {}, 'Rename the column or label.');
-    } else if (code < 0x20 || code === 0x7f) out += `\\x${hex(code, 2)}`;
-    else if (code > 0x7f) out += code > 0xffff ? `\\U{${hex(code, 1)}}` : `\\u{${hex(code, 1)}}`;
+    } else if (code < 0x20 || code >= 0x7f) out += code > 0xffff ? `\\U{${hex(code, 1)}}` : `\\u{${hex(code, 1)}}`;
     else out += ch;
   }
   return out + '"';
@@ -98,14 +102,16 @@ export function sqlIdentifier(name: string, dialect: SqlDialect): string {
 }
 
 /**
- * A SQL character-string literal. PostgreSQL gets the escape form `E'…'` whenever the text holds a
+ * A SQL character-string expression (a literal, or for control characters in SQLite and DuckDB a
+ * parenthesised concatenation). PostgreSQL gets the escape form `E'…'` whenever the text holds a
  * backslash or a control character, so the meaning does not depend on `standard_conforming_strings`;
  * Spark SQL always reads backslash escapes inside literals, so it gets them.
  */
 export function sqlString(text: string, dialect: SqlDialect): string {
   rejectNul(text, 'text');
-  const needsEscapes = /[\\\u0001-\u001f\u007f]/.test(text);
-  if (dialect === 'spark' || (dialect === 'postgres' && needsEscapes)) {
+  const isControl = (code: number) => code < 0x20 || code === 0x7f;
+  const hasControl = /[\u0001-\u001f\u007f]/.test(text);
+  if (dialect === 'spark' || (dialect === 'postgres' && (hasControl || text.includes('\\')))) {
     let body = '';
     for (const ch of text) {
       const code = ch.codePointAt(0)!;
@@ -114,12 +120,36 @@ export function sqlString(text: string, dialect: SqlDialect): string {
       else if (ch === '\n') body += '\\n';
       else if (ch === '\r') body += '\\r';
       else if (ch === '\t') body += '\\t';
-      else if (code < 0x20 || code === 0x7f) body += dialect === 'spark' ? `\\u${hex(code, 4)}` : `\\x${hex(code, 2)}`;
+      else if (isControl(code)) body += dialect === 'spark' ? `\\u${hex(code, 4)}` : `\\x${hex(code, 2)}`;
       else body += ch;
     }
     return dialect === 'spark' ? `'${body}'` : `E'${body}'`;
   }
-  return "'" + text.replaceAll("'", "''") + "'";
+  const plain = (part: string) => "'" + part.replaceAll("'", "''") + "'";
+  if (!hasControl) return plain(text);
+  if (dialect === 'ansi') {
+    let body = '';
+    for (const ch of text) {
+      const code = ch.codePointAt(0)!;
+      body += ch === '\\' ? '\\\\' : ch === "'" ? "''" : isControl(code) ? `\\${hex(code, 4).toUpperCase()}` : ch;
+    }
+    return `U&'${body}'`;
+  }
+  // SQLite and DuckDB: plain pieces and char(N) / chr(N) for each control character, concatenated.
+  const pieces: string[] = [];
+  let run = '';
+  for (const ch of text) {
+    const code = ch.codePointAt(0)!;
+    if (!isControl(code)) {
+      run += ch;
+      continue;
+    }
+    if (run !== '') pieces.push(plain(run));
+    run = '';
+    pieces.push(`${dialect === 'sqlite' ? 'char' : 'chr'}(${code})`);
+  }
+  if (run !== '') pieces.push(plain(run));
+  return `(${pieces.join(' || ')})`;
 }
 
 /**
