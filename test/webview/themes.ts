@@ -1,0 +1,126 @@
+/**
+ * Theme colour variables as VS Code sets them on a webview (CSS variables on <html>, a theme class
+ * on <body>). Values of the default Light Modern, Dark Modern and Dark High Contrast themes, from
+ * memory of those themes' colour tables: close enough to judge readability, not a copy to rely on.
+ */
+export type ThemeName = 'light' | 'dark' | 'high-contrast';
+
+export interface Theme {
+  bodyClass: string;
+  kind: string;
+  variables: Record<string, string>;
+}
+
+const common = {
+  '--vscode-font-family': 'system-ui, "Ubuntu", "Droid Sans", sans-serif',
+  '--vscode-font-size': '13px',
+  '--vscode-font-weight': 'normal',
+  '--vscode-editor-font-family': '"Droid Sans Mono", monospace',
+};
+
+export const THEMES: Record<ThemeName, Theme> = {
+  light: {
+    bodyClass: 'vscode-light',
+    kind: 'vscode-light',
+    variables: {
+      ...common,
+      '--vscode-foreground': '#3b3b3b',
+      '--vscode-editor-foreground': '#3b3b3b',
+      '--vscode-editor-background': '#ffffff',
+      '--vscode-descriptionForeground': '#616161',
+      '--vscode-focusBorder': '#005fb8',
+      '--vscode-button-background': '#005fb8',
+      '--vscode-button-foreground': '#ffffff',
+      '--vscode-button-hoverBackground': '#0258a8',
+      '--vscode-button-secondaryBackground': '#e5e5e5',
+      '--vscode-button-secondaryForeground': '#3b3b3b',
+      '--vscode-button-secondaryHoverBackground': '#cccccc',
+      '--vscode-dropdown-background': '#ffffff',
+      '--vscode-dropdown-foreground': '#3b3b3b',
+      '--vscode-dropdown-border': '#cecece',
+      '--vscode-input-background': '#ffffff',
+      '--vscode-input-foreground': '#3b3b3b',
+      '--vscode-input-border': '#cecece',
+      '--vscode-panel-border': '#e5e5e5',
+      '--vscode-errorForeground': '#f85149',
+      '--vscode-editorWarning-foreground': '#bf8803',
+      '--vscode-editorInfo-foreground': '#1a85ff',
+      '--vscode-textLink-foreground': '#005fb8',
+      '--vscode-list-hoverBackground': '#f2f2f2',
+      '--vscode-list-inactiveSelectionBackground': '#e4e6f1',
+      '--vscode-editorHoverWidget-background': '#f8f8f8',
+      '--vscode-editorHoverWidget-border': '#c8c8c8',
+      '--vscode-progressBar-background': '#005fb8',
+      '--vscode-editor-findMatchHighlightBackground': 'rgba(234, 92, 0, 0.33)',
+    },
+  },
+  dark: {
+    bodyClass: 'vscode-dark',
+    kind: 'vscode-dark',
+    variables: {
+      ...common,
+      '--vscode-foreground': '#cccccc',
+      '--vscode-editor-foreground': '#cccccc',
+      '--vscode-editor-background': '#1f1f1f',
+      '--vscode-descriptionForeground': '#9d9d9d',
+      '--vscode-focusBorder': '#0078d4',
+      '--vscode-button-background': '#0078d4',
+      '--vscode-button-foreground': '#ffffff',
+      '--vscode-button-hoverBackground': '#026ec1',
+      '--vscode-button-secondaryBackground': '#313131',
+      '--vscode-button-secondaryForeground': '#cccccc',
+      '--vscode-button-secondaryHoverBackground': '#3c3c3c',
+      '--vscode-dropdown-background': '#313131',
+      '--vscode-dropdown-foreground': '#cccccc',
+      '--vscode-dropdown-border': '#3c3c3c',
+      '--vscode-input-background': '#313131',
+      '--vscode-input-foreground': '#cccccc',
+      '--vscode-input-border': '#3c3c3c',
+      '--vscode-panel-border': '#2b2b2b',
+      '--vscode-errorForeground': '#f85149',
+      '--vscode-editorWarning-foreground': '#cca700',
+      '--vscode-editorInfo-foreground': '#3794ff',
+      '--vscode-textLink-foreground': '#4daafc',
+      '--vscode-list-hoverBackground': '#2a2d2e',
+      '--vscode-list-inactiveSelectionBackground': '#37373d',
+      '--vscode-editorHoverWidget-background': '#202020',
+      '--vscode-editorHoverWidget-border': '#454545',
+      '--vscode-progressBar-background': '#0078d4',
+      '--vscode-editor-findMatchHighlightBackground': 'rgba(234, 92, 0, 0.33)',
+    },
+  },
+  'high-contrast': {
+    bodyClass: 'vscode-high-contrast',
+    kind: 'vscode-high-contrast',
+    variables: {
+      ...common,
+      '--vscode-foreground': '#ffffff',
+      '--vscode-editor-foreground': '#ffffff',
+      '--vscode-editor-background': '#000000',
+      '--vscode-descriptionForeground': '#ffffff',
+      '--vscode-focusBorder': '#f38518',
+      '--vscode-contrastBorder': '#6fc3df',
+      '--vscode-contrastActiveBorder': '#f38518',
+      '--vscode-button-background': '#000000',
+      '--vscode-button-foreground': '#ffffff',
+      '--vscode-button-border': '#6fc3df',
+      '--vscode-button-secondaryBackground': '#000000',
+      '--vscode-button-secondaryForeground': '#ffffff',
+      '--vscode-dropdown-background': '#000000',
+      '--vscode-dropdown-foreground': '#ffffff',
+      '--vscode-dropdown-border': '#6fc3df',
+      '--vscode-input-background': '#000000',
+      '--vscode-input-foreground': '#ffffff',
+      '--vscode-input-border': '#6fc3df',
+      '--vscode-panel-border': '#6fc3df',
+      '--vscode-errorForeground': '#f48771',
+      '--vscode-editorWarning-foreground': '#ffd370',
+      '--vscode-editorInfo-foreground': '#3794ff',
+      '--vscode-textLink-foreground': '#21a6ff',
+      '--vscode-editorHoverWidget-background': '#0c141f',
+      '--vscode-editorHoverWidget-border': '#6fc3df',
+      '--vscode-progressBar-background': '#6fc3df',
+      '--vscode-editor-findMatchHighlightBackground': 'rgba(0, 0, 0, 0)',
+    },
+  },
+};

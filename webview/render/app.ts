@@ -1,0 +1,124 @@
+/**
+ * The panel: reacts to the host's messages (init, progress, result, error, comparison) and draws
+ * the header, the progress strip and the current view. Holds no data but the last message of each
+ * kind, so a theme change or a new result simply draws again.
+ */
+import type { FitReport } from '../../src/core/types';
+import type { ColumnChoice, ComparisonMessage, EditableOptions, ErrorMessage, PanelSettings, ProgressMessage, ToPanel } from '../../src/shared/messages';
+import { button, clear, element } from '../dom';
+import type { StateStore } from '../state';
+import type { HostConnection } from '../vscodeApi';
+import { comparisonSection } from './comparison';
+import { renderReport, type RenderedReport } from './report';
+import { errorView, progressStrip } from './status';
+
+/** `folder/pump-faults.csv` → `pump-faults`, reduced to characters safe in any file name. */
+export function fileStem(name: string): string {
+  const base = name.split(/[\\/]/).pop() ?? name;
+  const stem = base.replace(/\.[^.]*$/, '').replace(/[^A-Za-z0-9._-]+/g, '_');
+  return stem || 'scatterwise';
+}
+
+export class PanelApp {
+  private fileName = '';
+  private settings: PanelSettings | null = null;
+  private report: FitReport | null = null;
+  private comparison: ComparisonMessage | null = null;
+  private error: ErrorMessage | null = null;
+  private columns: readonly ColumnChoice[] = [];
+  private options: EditableOptions | null = null;
+  private rendered: RenderedReport | null = null;
+  private readonly header = element('header', { className: 'panel-header' });
+  private readonly status = element('div', { className: 'status-area' });
+  private readonly content = element('div', { className: 'content' });
+
+  constructor(private readonly root: HTMLElement, private readonly host: HostConnection, private readonly store: StateStore) {
+    clear(root);
+    root.append(this.header, this.status, this.content);
+    this.content.appendChild(element('p', { className: 'app-waiting', text: 'Waiting for the analysis…' }));
+  }
+
+  receive(message: ToPanel): void {
+    switch (message.type) {
+      case 'init':
+        this.fileName = message.fileName;
+        this.settings = message.settings;
+        this.drawHeader();
+        break;
+      case 'progress':
+        this.showProgress(message);
+        break;
+      case 'result':
+        this.report = message.report;
+        this.columns = message.columns;
+        this.options = message.options;
+        this.error = null;
+        this.comparison = null;
+        this.showProgress(null);
+        this.draw();
+        break;
+      case 'error':
+        this.error = message;
+        if (message.columns) this.columns = message.columns;
+        if (message.options) this.options = message.options;
+        this.showProgress(null);
+        this.draw();
+        break;
+      case 'comparison':
+        this.comparison = message;
+        this.report = message.head;
+        this.error = null;
+        this.draw();
+        break;
+    }
+  }
+
+  /** Draws the current view again (after a theme change, say). */
+  draw(): void {
+    this.drawHeader();
+    this.rendered?.dispose();
+    this.rendered = null;
+    clear(this.content);
+    const post = this.host.post;
+    if (this.error) {
+      this.content.appendChild(errorView(this.error, { store: this.store, post, columns: this.columns, options: this.options }));
+      return;
+    }
+    if (!this.report) {
+      this.content.appendChild(element('p', { className: 'app-waiting', text: 'Waiting for the analysis…' }));
+      return;
+    }
+    if (this.comparison) this.content.appendChild(comparisonSection(this.comparison));
+    this.rendered = renderReport(this.report, {
+      store: this.store,
+      post,
+      fileStem: fileStem(this.fileName || this.report.source.name),
+      columns: this.columns,
+      options: this.options ?? { ...this.report.options, label: this.report.label, features: this.report.features },
+    });
+    this.content.appendChild(this.rendered.element);
+  }
+
+  private drawHeader(): void {
+    const name = this.fileName || this.report?.source.name || '';
+    const post = this.host.post;
+    clear(this.header);
+    this.header.append(
+      element('h1', { className: 'file-name', text: name || 'Scatterwise' }),
+      element('div', { className: 'header-actions' }, [
+        button('Generate fit script', () => post({ type: 'command', command: 'generateScript' }), { attributes: { disabled: !this.report } }),
+        button('Compare with HEAD', () => post({ type: 'command', command: 'compareWithHead' }), { attributes: { disabled: !this.report } }),
+      ]),
+    );
+    if (this.settings && this.report && this.settings.plotBudget !== this.report.options.plotBudget) {
+      this.header.appendChild(
+        element('p', { className: 'note', text: `The plot budget setting is now ${this.settings.plotBudget.toLocaleString('en-US')} points; this report was sampled with ${this.report.options.plotBudget.toLocaleString('en-US')}. Refit to apply it.` }),
+      );
+    }
+  }
+
+  private showProgress(message: ProgressMessage | null): void {
+    clear(this.status);
+    if (message) this.status.appendChild(progressStrip(message, this.host.post));
+  }
+}
