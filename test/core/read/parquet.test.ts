@@ -1,0 +1,191 @@
+/**
+ * Parquet fixtures written by two independent writers (DuckDB with four codecs, hyparquet-writer
+ * with several row groups; see test/fixtures/read/README.md) read against their expected-output
+ * JSON, which comes from DuckDB reading the file back or from the data given to the writer.
+ */
+import { strict as assert } from 'node:assert';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { CancelledError, DataError } from '../../../src/core/errors';
+import { inspectTable, scanTable } from '../../../src/core/read/index';
+import { DEFAULT_PARQUET_TUNING, scanParquet } from '../../../src/core/read/parquet';
+import type { ScanSummary, TableInspection } from '../../../src/core/read/types';
+import { memorySource, type Progress } from '../../../src/core/source';
+
+const FIXTURES = join('test', 'fixtures', 'read');
+
+interface Expected {
+  rows: number;
+  rowGroups: number;
+  nestedColumns: string[];
+  columns: Record<string, (number | string | boolean | null)[]>;
+}
+
+const loadFixture = (name: string): { bytes: Uint8Array; expected: Expected } => ({
+  bytes: new Uint8Array(readFileSync(join(FIXTURES, `${name}.parquet`))),
+  expected: JSON.parse(readFileSync(join(FIXTURES, `${name}.expected.json`), 'utf8')) as Expected,
+});
+
+/** What a cell of the expected JSON means as a feature: DECIMAL and BIGINT come as decimal text. */
+function expectedFeature(value: number | string | boolean | null): number {
+  if (value === null) return NaN;
+  if (typeof value === 'boolean') return value ? 1 : 0;
+  return typeof value === 'string' ? Number(value) : value;
+}
+
+const NUMERIC = ['vibration_rms', 'kurtosis', 'acoustic_db', 'impeller_rpm', 'run_hours', 'seal_ok'];
+
+async function scanAll(bytes: Uint8Array, name: string, inspection: TableInspection, featureNames: string[], sliceRows: number) {
+  const index = (column: string): number => inspection.columns.findIndex((c) => c.name === column);
+  const values: number[] = [];
+  const labels: number[] = [];
+  const firstRows: number[] = [];
+  let dictionary: readonly string[] = [];
+  const summary: ScanSummary = await scanParquet(
+    {
+      source: memorySource(name, bytes),
+      inspection,
+      plan: { label: index('fault'), features: featureNames.map(index) },
+      onBatch: (batch, batchLabels) => {
+        assert.equal(batch.lines, undefined);
+        firstRows.push(batch.firstRow);
+        values.push(...batch.values);
+        labels.push(...batch.labels);
+        dictionary = batchLabels;
+      },
+    },
+    { ...DEFAULT_PARQUET_TUNING, sliceRows, batchRows: 16 },
+  );
+  return { values, labels, firstRows, dictionary: dictionary.slice(), summary };
+}
+
+describe('parquet', () => {
+  for (const fixture of ['pumps-duckdb-snappy', 'pumps-duckdb-zstd', 'pumps-duckdb-gzip', 'pumps-duckdb-brotli', 'pumps-hyparquet']) {
+    describe(fixture, () => {
+      const { bytes, expected } = loadFixture(fixture);
+      const features = NUMERIC.filter((name) => name in expected.columns);
+
+      it('inspects the schema: kinds, nested columns with a note, exact row count', async () => {
+        const inspection = await inspectTable(memorySource(`${fixture}.parquet`, bytes));
+        assert.equal(inspection.format, 'parquet');
+        assert.equal(inspection.estimatedRows, expected.rows);
+        assert.equal(inspection.splittable, false);
+        const kinds = Object.fromEntries(inspection.columns.map((column) => [column.name, column.kind]));
+        for (const name of features) assert.equal(kinds[name], 'numeric', name);
+        assert.equal(kinds.fault, 'text');
+        if ('inspected_on' in expected.columns) assert.equal(kinds.inspected_on, 'text');
+        for (const name of expected.nestedColumns) assert.equal(kinds[name], 'nested', name);
+        const nestedNote = inspection.notes?.find((note) => note.code === 'nested-columns-ignored');
+        assert.deepEqual(nestedNote?.columns ?? [], expected.nestedColumns);
+        const rpm = inspection.columns.find((column) => column.name === 'impeller_rpm')!;
+        assert.equal(rpm.integral, true);
+        assert.equal(rpm.missing, 0);
+        const rms = inspection.columns.find((column) => column.name === 'vibration_rms')!;
+        assert.equal(rms.missing, expected.columns.vibration_rms.filter((value) => value === null).length);
+      });
+
+      for (const sliceRows of [37, 65_536]) {
+        it(`scans every value as the outside reader sees it (slices of ${sliceRows} rows)`, async () => {
+          const inspection = await inspectTable(memorySource(`${fixture}.parquet`, bytes));
+          const read = await scanAll(bytes, `${fixture}.parquet`, inspection, features, sliceRows);
+          assert.equal(read.summary.rows, expected.rows);
+          assert.equal(read.values.length, expected.rows * features.length);
+          for (let row = 0; row < expected.rows; row++) {
+            features.forEach((name, slot) => {
+              const want = expectedFeature(expected.columns[name][row]);
+              assert.ok(Object.is(read.values[row * features.length + slot], want), `${name} row ${row}: ${read.values[row * features.length + slot]} vs ${want}`);
+            });
+          }
+          const faults = expected.columns.fault as (string | null)[];
+          const order = [...new Set(faults.filter((fault): fault is string => fault !== null))];
+          assert.deepEqual(read.dictionary, order);
+          assert.deepEqual(read.labels, faults.map((fault) => (fault === null ? -1 : order.indexOf(fault))));
+          assert.deepEqual(read.summary.labels, order);
+          for (let i = 1; i < read.firstRows.length; i++) assert.ok(read.firstRows[i] > read.firstRows[i - 1]);
+          const precision = read.summary.notes.find((note) => note.code === 'int64-precision');
+          assert.deepEqual(precision?.columns, ['run_hours']);
+          assert.match(precision!.message, /run_hours: 2 values/);
+          assert.deepEqual(read.summary.nonNumeric, features.map(() => 0));
+        });
+      }
+    });
+  }
+
+  it('reads a DATE column used as a feature as non-numeric, with examples', async () => {
+    const { bytes } = loadFixture('pumps-duckdb-snappy');
+    const inspection = await inspectTable(memorySource('pumps.parquet', bytes));
+    const read = await scanAll(bytes, 'pumps.parquet', inspection, ['inspected_on'], 1000);
+    assert.equal(read.summary.nonNumeric[0], 300);
+    assert.deepEqual(read.summary.nonNumericExamples[0][0], { row: 0, text: '2024-01-01T00:00:00.000Z' });
+  });
+
+  it('refuses a nested column in the plan', async () => {
+    const { bytes } = loadFixture('pumps-duckdb-snappy');
+    const source = memorySource('pumps.parquet', bytes);
+    const inspection = await inspectTable(source);
+    const nested = inspection.columns.findIndex((column) => column.kind === 'nested');
+    await assert.rejects(
+      scanTable({ source, inspection, plan: { label: 0, features: [nested] }, onBatch: () => {} }),
+      (error: unknown) => error instanceof DataError && error.code === 'nested-column' && error.message.includes('sensor_meta'),
+    );
+  });
+
+  describe('damaged files', () => {
+    const { bytes } = loadFixture('pumps-duckdb-zstd');
+    const rejects = async (damaged: Uint8Array, pattern: RegExp): Promise<void> => {
+      const source = memorySource('damaged.parquet', damaged);
+      await assert.rejects(
+        (async () => {
+          const inspection = await inspectTable(source, { format: 'parquet' });
+          await scanTable({ source, inspection, plan: { label: 7, features: [0, 1, 2] }, onBatch: () => {} });
+        })(),
+        (error: unknown) => error instanceof DataError && error.code === 'parquet-invalid' && error.message.includes('damaged.parquet') && pattern.test(error.message),
+      );
+    };
+
+    it('a truncated file', async () => {
+      await rejects(bytes.slice(0, bytes.length - 1000), /footer is missing or damaged/);
+      await rejects(bytes.slice(0, 8), /only 8 bytes/);
+    });
+
+    it('a bad magic number at the start or the end', async () => {
+      const start = bytes.slice();
+      start.set([0x50, 0x4b, 0x03, 0x04]); // a zip file's start
+      await rejects(start, /does not start with the Parquet magic/);
+      const end = bytes.slice();
+      end[end.length - 1] = 0x30;
+      await rejects(end, /does not end with the magic bytes/);
+    });
+
+    it('a footer whose length or content is damaged', async () => {
+      const length = bytes.slice();
+      new DataView(length.buffer).setUint32(length.length - 8, 0x7fffffff, true);
+      await rejects(length, /footer cannot be decoded/);
+      const content = bytes.slice();
+      const footerLength = new DataView(bytes.buffer, bytes.byteOffset).getUint32(bytes.length - 8, true);
+      content.fill(0xff, content.length - 8 - footerLength, content.length - 8);
+      await rejects(content, /footer cannot be decoded/);
+    });
+
+    it('damaged column data behind an intact footer', async () => {
+      const damaged = bytes.slice();
+      damaged.fill(0xa5, 4, 4000);
+      await rejects(damaged, /cannot be decoded/);
+    });
+  });
+
+  it('reports progress and stops on cancellation', async () => {
+    const { bytes } = loadFixture('pumps-hyparquet');
+    const source = memorySource('pumps.parquet', bytes);
+    const inspection = await inspectTable(source);
+    const events: Progress[] = [];
+    await scanParquet({ source, inspection, plan: { label: 5, features: [0] }, onBatch: () => {}, control: { onProgress: (p) => events.push(p) } }, { ...DEFAULT_PARQUET_TUNING, sliceRows: 10 });
+    assert.ok(events.length > 5);
+    assert.equal(events[events.length - 1].bytesRead, source.size);
+    const controller = new AbortController();
+    await assert.rejects(
+      scanParquet({ source, inspection, plan: { label: 5, features: [0] }, onBatch: () => controller.abort(), control: { signal: controller.signal } }, { ...DEFAULT_PARQUET_TUNING, sliceRows: 10 }),
+      CancelledError,
+    );
+  });
+});
