@@ -15,6 +15,7 @@ import { EXIT_OK } from '../command';
 import { checkOutputs, openInput, OutputFile } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 import { ScoresFile } from '../scoresFile';
+import { runFitFromMoments } from './moments';
 
 export const REPORT_FORMATS = ['text', 'markdown', 'json'] as const;
 export type ReportFormat = (typeof REPORT_FORMATS)[number];
@@ -23,6 +24,7 @@ const OUTPUT_SPECS: readonly OptionSpec[] = [
   { name: 'format', value: 'FORMAT', values: REPORT_FORMATS, describe: 'report format (default text)' },
   { name: 'out', value: 'FILE', describe: 'write the report to FILE instead of the standard output' },
   { name: 'scores', value: 'FILE', describe: 'write a CSV of discriminant scores LD1..LDk, one line per data row (empty for dropped rows)' },
+  { name: 'moments', describe: 'the FILEs are per-class moments (JSON from `scatterwise moments`, or CSV results of the SQL moments query), merged and fitted without the rows' },
 ];
 
 export function renderReport(report: FitReport, format: ReportFormat): string {
@@ -32,6 +34,7 @@ export function renderReport(report: FitReport, format: ReportFormat): string {
 }
 
 async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
+  if (args.flags.has('moments')) return runFitFromMoments(args, io, (valueOf(args, 'format') ?? 'text') as ReportFormat, valueOf(args, 'out'));
   if (args.positionals.length !== 1) {
     throw new UsageError(args.positionals.length === 0 ? 'fit needs the data file to analyse' : `fit takes one data file (got ${args.positionals.length}: ${args.positionals.join(' ')})`, 'fit');
   }

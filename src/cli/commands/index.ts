@@ -4,5 +4,7 @@
  */
 import type { Command } from '../command';
 import { fitCommand } from './fit';
+import { momentsCommand } from './moments';
+import { scriptCommand } from './script';
 
-export const COMMANDS: readonly Command[] = [fitCommand];
+export const COMMANDS: readonly Command[] = [fitCommand, scriptCommand, momentsCommand];

@@ -94,6 +94,7 @@ export function momentsQueryStatements(request: MomentsQueryRequest): string[] {
     ];
     const columns = [`  class_label AS ${id('label')}`, `  COUNT(*) AS ${id('n')}`];
     if (head) {
+      columns.push(`  ${sqlString(request.label, dialect)} AS ${id('label_column')}`);
       features.forEach((name, j) => columns.push(`  ${sqlString(name, dialect)} AS ${id(`feature_${j}`)}`, `  ${shift(j)} AS ${id(`shift_${j}`)}`));
       features.forEach((_, j) => columns.push(`  SUM(x_${j}) AS ${id(`sum_${j}`)}`, `  MIN(v_${j}) AS ${id(`min_${j}`)}`, `  MAX(v_${j}) AS ${id(`max_${j}`)}`, `  SUM(q * x_${j}) AS ${id(`cubic_${j}`)}`));
       columns.push(`  SUM(q * q) AS ${id('quartic')}`);
