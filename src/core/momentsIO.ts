@@ -13,8 +13,9 @@
  *   cubic_j                  Σ q·y_j          with q = ‖y‖²
  *   quartic                  Σ q²
  *   cross_i_j                Σ y_i·y_j
- * The first statement's result holds all but some cross_i_j; each further statement's result holds
- * label, n and more cross_i_j. A new part starts at every result that has feature_0.
+ * A wide table's query is split into statements: the first statement's result holds label_column,
+ * feature_j and shift_j, and every result holds label, n and some of the statistics. A new part
+ * starts at every result that has feature_0; the results of one part must hold each statistic once.
  *
  * From these, with ȳ = Σy/n, c = ‖ȳ‖², S₂ = Σyyᵀ, T = tr S₂, C = Σq·y, the class moments centred
  * on the class mean (z = y − ȳ) are exactly (expand ‖z‖² = q − 2yᵀȳ + c):
@@ -46,9 +47,9 @@ interface ResultTable {
 }
 
 function readResultTable(input: MomentsInput): ResultTable {
-  let records: string[][];
+  let records: { record: string[]; info: { lines: number } }[];
   try {
-    records = parse(input.text.replace(/^\uFEFF/, ''), { relax_column_count: false, skip_empty_lines: true }) as string[][];
+    records = parse(input.text.replace(/^\uFEFF/, ''), { relax_column_count: false, skip_empty_lines: true, info: true }) as unknown as { record: string[]; info: { lines: number } }[];
   } catch (error) {
     const line = (error as { lines?: number }).lines;
     throw new DataError('bad-moments-table', `${input.name}: not a readable CSV table (${(error as Error).message}).`, { file: input.name, ...(line ? { line } : {}) }, 'Save the query result as CSV with a header row.');
@@ -56,8 +57,9 @@ function readResultTable(input: MomentsInput): ResultTable {
   if (records.length < 2) {
     throw new DataError('bad-moments-table', `${input.name}: the moments table has no class rows.`, { file: input.name }, 'Save the whole query result, header included.');
   }
-  const columns = records[0]!.map((c) => c.trim());
-  const rows = records.slice(1).map((cells, i) => ({ line: i + 2, cells: new Map(columns.map((c, j) => [c, cells[j]!])) }));
+  const columns = records[0]!.record.map((c) => c.trim());
+  // A record starts on the line after the previous one ended (a quoted name may hold line breaks).
+  const rows = records.slice(1).map(({ record }, i) => ({ line: records[i]!.info.lines + 1, cells: new Map(columns.map((c, j) => [c, record[j]!])) }));
   return { name: input.name, columns, rows };
 }
 
@@ -71,6 +73,11 @@ function numberCell(table: ResultTable, row: ResultRow, column: string): number 
     throw new DataError('bad-moments-table', `${table.name}, line ${row.line}: '${text}' in column '${column}' is not a finite number.`, { file: table.name, line: row.line, column }, 'Check that the query ran unchanged and its result was saved as CSV.');
   }
   return value;
+}
+
+/** Columns holding a number per class (everything but the label, count and names). */
+function isStatistic(column: string): boolean {
+  return column !== 'label' && column !== 'n' && column !== 'label_column' && !column.startsWith('feature_');
 }
 
 /** The sums of one class, gathered from the blocks of one part. */
@@ -105,12 +112,12 @@ function partFromTables(tables: ResultTable[]): { moments: Moments; label?: stri
         throw new DataError('bad-moments-table', `${table.name}, line ${row.line}: class '${label}' has ${count} rows here and ${sums.count} in ${head.name}; the statements did not read the same rows.`, { file: table.name, line: row.line }, 'Run every statement of the query on the same, unchanged table.');
       }
       for (const column of table.columns) {
-        if (column === 'label' || column === 'n' || column === 'label_column' || column.startsWith('feature_')) continue;
-        if (table === head || column.startsWith('cross_')) sums.values.set(column, numberCell(table, row, column));
+        if (!isStatistic(column)) continue;
+        sums.values.set(column, numberCell(table, row, column));
       }
     }
     for (const column of table.columns) {
-      if (!column.startsWith('cross_')) continue;
+      if (!isStatistic(column)) continue;
       if (seen.has(column)) throw new DataError('bad-moments-table', `${table.name}: column '${column}' appears in two results of the same part.`, { file: table.name, column }, 'Pass each statement\'s result once.');
       seen.add(column);
     }

@@ -14,9 +14,9 @@
  * engines that store it), as the `drop-rows` policy does for a file.
  *
  * Width: one query with d² aggregates crashed DuckDB from about 10 000 aggregates (MEASURED.md), so
- * the cross-products are split into blocks of at most `maxAggregates` per statement; the first
- * block carries everything else. Run every statement and pass all their results to `fit --moments`
- * in order.
+ * the aggregates are split into statements of at most `maxAggregates` each; the first statement
+ * also carries the label column's name, the feature names and the shifts. Run every statement and
+ * pass all their results to `fit --moments` in order.
  */
 import { commentText, sqlIdentifier, sqlString, type SqlDialect } from './quoting';
 
@@ -67,45 +67,43 @@ export function momentsQueryStatements(request: MomentsQueryRequest): string[] {
   const shift = (j: number) => `CAST(${numberLiteral(shifts[j]!)} AS ${double})`;
 
   const where = [`${id(request.label)} IS NOT NULL`, ...features.map((_, j) => `ABS(${cast(j)}) <= ${DBL_MAX}`)];
-  const shiftedCte = (withRaw: boolean) =>
-    [
-      'shifted AS (',
-      '  SELECT',
-      [`    CAST(${id(request.label)} AS ${TEXT_TYPE[dialect]}) AS class_label`, ...features.flatMap((_, j) => [...(withRaw ? [`    ${cast(j)} AS v_${j}`] : []), `    ${cast(j)} - ${shift(j)} AS x_${j}`])].join(',\n'),
-      `  FROM ${table}`,
-      `  WHERE ${where.join('\n    AND ')}`,
-      ')',
-    ].join('\n');
+  const squares = features.map((_, j) => `x_${j} * x_${j}`).join(' + ');
+  const ctes = [
+    'WITH shifted AS (',
+    '  SELECT',
+    [`    CAST(${id(request.label)} AS ${TEXT_TYPE[dialect]}) AS class_label`, ...features.flatMap((_, j) => [`    ${cast(j)} AS v_${j}`, `    ${cast(j)} - ${shift(j)} AS x_${j}`])].join(',\n'),
+    `  FROM ${table}`,
+    `  WHERE ${where.join('\n    AND ')}`,
+    '),',
+    'squared AS (',
+    `  SELECT shifted.*, ${squares} AS q`,
+    '  FROM shifted',
+    ')',
+  ].join('\n');
 
-  const pairs = upperPairs(d);
-  const headAggregates = 1 + 4 * d + 1;
-  const headPairs = Math.max(0, limit - headAggregates);
-  const blocks: [number, number][][] = [pairs.slice(0, headPairs)];
-  for (let start = headPairs; start < pairs.length; start += limit - 1) blocks.push(pairs.slice(start, start + limit - 1));
+  // Every aggregate but COUNT (which each statement repeats), in the order the statements take them.
+  const aggregates: string[] = [`  SUM(q * q) AS ${id('quartic')}`];
+  features.forEach((_, j) => aggregates.push(`  SUM(x_${j}) AS ${id(`sum_${j}`)}`, `  MIN(v_${j}) AS ${id(`min_${j}`)}`, `  MAX(v_${j}) AS ${id(`max_${j}`)}`, `  SUM(q * x_${j}) AS ${id(`cubic_${j}`)}`));
+  for (const [i, j] of upperPairs(d)) aggregates.push(`  SUM(x_${i} * x_${j}) AS ${id(`cross_${i}_${j}`)}`);
+  const perStatement = limit - 1;
+  const count = Math.ceil(aggregates.length / perStatement);
 
-  const cross = (block: [number, number][]) => block.map(([i, j]) => `  SUM(x_${i} * x_${j}) AS ${id(`cross_${i}_${j}`)}`);
   const statements: string[] = [];
-  blocks.forEach((block, index) => {
+  for (let index = 0; index < count; index++) {
     const head = index === 0;
     const comment = [
       ...request.provenance.map((line) => `-- ${commentText(line)}`),
-      `-- Dialect: ${dialect}. Statement ${index + 1} of ${blocks.length}${blocks.length > 1 ? ': save each result as CSV with a header and pass them all, in order, to fit --moments' : ': save the result as CSV with a header and run: scatterwise fit --moments RESULT.csv'}.`,
+      `-- Dialect: ${dialect}. Statement ${index + 1} of ${count}${count > 1 ? ': save each result as CSV with a header and pass them all, in order, to scatterwise fit --moments' : ': save the result as CSV with a header and run: scatterwise fit --moments RESULT.csv'}.`,
       `-- Label: ${commentText(request.label)}; ${d} features${head ? ' (feature_j names feature j; shift_j is the constant subtracted before summing products)' : ''}.`,
     ];
     const columns = [`  class_label AS ${id('label')}`, `  COUNT(*) AS ${id('n')}`];
     if (head) {
       columns.push(`  ${sqlString(request.label, dialect)} AS ${id('label_column')}`);
       features.forEach((name, j) => columns.push(`  ${sqlString(name, dialect)} AS ${id(`feature_${j}`)}`, `  ${shift(j)} AS ${id(`shift_${j}`)}`));
-      features.forEach((_, j) => columns.push(`  SUM(x_${j}) AS ${id(`sum_${j}`)}`, `  MIN(v_${j}) AS ${id(`min_${j}`)}`, `  MAX(v_${j}) AS ${id(`max_${j}`)}`, `  SUM(q * x_${j}) AS ${id(`cubic_${j}`)}`));
-      columns.push(`  SUM(q * q) AS ${id('quartic')}`);
     }
-    columns.push(...cross(block));
-    const squares = features.map((_, j) => `x_${j} * x_${j}`).join(' + ');
-    const ctes = head ? `WITH ${shiftedCte(true)},\nsquared AS (\n  SELECT shifted.*, ${squares} AS q\n  FROM shifted\n)` : `WITH ${shiftedCte(false)}`;
-    statements.push(
-      [...comment, ctes, 'SELECT', columns.join(',\n'), `FROM ${head ? 'squared' : 'shifted'}`, 'GROUP BY class_label', 'ORDER BY class_label;'].join('\n'),
-    );
-  });
+    columns.push(...aggregates.slice(index * perStatement, (index + 1) * perStatement));
+    statements.push([...comment, ctes, 'SELECT', columns.join(',\n'), 'FROM squared', 'GROUP BY class_label', 'ORDER BY class_label;'].join('\n'));
+  }
   return statements;
 }
 
