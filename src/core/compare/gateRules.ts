@@ -35,3 +35,56 @@ export function effectiveRules(...candidates: (GateRules | undefined)[]): { rule
 export function severityRank(severity: Severity): number {
   return SEVERITIES.indexOf(severity);
 }
+
+/** The `--fail-on` spellings, for help and messages. */
+export const FAIL_ON_FORMS = ['min-accuracy=FRACTION|N%', 'accuracy-drop=FRACTION|N%', 'new-finding=info|warning|error', 'class-lost', 'none'] as const;
+
+/** `0.9` or `90%` → 0.9; null when it is not a number in [0, 1]. */
+function fraction(text: string): number | null {
+  const percent = /^(\d+(?:\.\d+)?)%$/.exec(text);
+  const value = percent ? Number(percent[1]) / 100 : /^(\d+(?:\.\d+)?|\.\d+)$/.test(text) ? Number(text) : NaN;
+  return Number.isFinite(value) && value >= 0 && value <= 1 ? value : null;
+}
+
+/**
+ * Reads `--fail-on` values (each may hold several rules separated by commas) into gate rules.
+ * Returns the rules, or the first problem in words. `none` means: no gate at all.
+ */
+export function parseFailOn(values: readonly string[]): { rules: GateRules } | { problem: string } {
+  const rules: GateRules = {};
+  const seen = new Set<string>();
+  for (const item of values.flatMap((v) => v.split(',')).map((s) => s.trim()).filter(Boolean)) {
+    const [name, value] = item.includes('=') ? [item.slice(0, item.indexOf('=')), item.slice(item.indexOf('=') + 1)] : [item, undefined];
+    if (seen.has(name)) return { problem: `the rule '${name}' is given twice` };
+    seen.add(name);
+    switch (name) {
+      case 'min-accuracy':
+      case 'accuracy-drop': {
+        const parsed = value === undefined ? null : fraction(value);
+        if (parsed === null) return { problem: `'${item}' needs a fraction from 0 to 1 or a percentage, e.g. ${name}=${name === 'min-accuracy' ? '0.9 or 90%' : '0.02 or 2%'}` };
+        if (name === 'min-accuracy') rules.minAccuracy = parsed;
+        else rules.maxAccuracyDrop = parsed;
+        break;
+      }
+      case 'new-finding':
+        if (!SEVERITIES.includes(value as Severity)) return { problem: `'${item}' needs a severity: new-finding=info, new-finding=warning or new-finding=error` };
+        rules.newFindingAtOrAbove = value as Severity;
+        break;
+      case 'class-lost':
+        if (value !== undefined) return { problem: "'class-lost' takes no value" };
+        rules.classDisappears = true;
+        break;
+      case 'none':
+        if (value !== undefined) return { problem: "'none' takes no value" };
+        break;
+      default:
+        return { problem: `unknown rule '${name}' (rules: ${FAIL_ON_FORMS.join(', ')})` };
+    }
+  }
+  if (seen.has('none')) {
+    if (seen.size > 1) return { problem: "'none' cannot be combined with other rules" };
+    // An explicit rule set with nothing to check: no gate fails.
+    return { rules: { classDisappears: false } };
+  }
+  return { rules };
+}
