@@ -122,20 +122,65 @@ export function pivotedCholesky(a: Float64Array, n: number, tolerance: number): 
   return { rank, pivots, factor: l, residual };
 }
 
-/** Solves L x = b in place (L n × n lower triangular, row-major, b of length n). */
-export function solveLower(l: Float64Array, n: number, b: Float64Array): void {
+export interface OrderedCholeskyResult {
+  /** Indices kept, ascending. */
+  kept: Int32Array;
+  /** kept.length × kept.length lower-triangular factor of A[kept, kept]. */
+  factor: Float64Array;
+}
+
+/**
+ * Cholesky in the given column order that skips every column whose Schur-complement diagonal
+ * (its variance left after the columns kept before it) is ≤ `tolerance`: the first maximal set
+ * of columns, in order, that the tolerance calls independent. Used after pivotedCholesky has
+ * fixed the rank, so that of a dependent group the later columns are the ones set aside.
+ */
+export function orderedCholesky(a: Float64Array, n: number, tolerance: number): OrderedCholeskyResult {
+  const l = new Float64Array(n * n);
+  const kept: number[] = [];
+  const row = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    const k = kept.length;
+    let sumOfSquares = 0;
+    for (let t = 0; t < k; t++) {
+      const rowT = t * n;
+      let v = a[kept[t] * n + j];
+      for (let s = 0; s < t; s++) v -= row[s] * l[rowT + s];
+      v /= l[rowT + t];
+      row[t] = v;
+      sumOfSquares += v * v;
+    }
+    const schur = a[j * n + j] - sumOfSquares;
+    if (schur > tolerance) {
+      const rowK = k * n;
+      for (let t = 0; t < k; t++) l[rowK + t] = row[t];
+      l[rowK + k] = Math.sqrt(schur);
+      kept.push(j);
+    }
+  }
+  const rank = kept.length;
+  const factor = new Float64Array(rank * rank);
+  for (let i = 0; i < rank; i++) for (let j = 0; j <= i; j++) factor[i * rank + j] = l[i * n + j];
+  return { kept: Int32Array.from(kept), factor };
+}
+
+/**
+ * Solves L x = b in place (L n × n lower triangular, row-major with row length `stride` ≥ n, so
+ * the leading block of a larger factor can be used; b of length n).
+ */
+export function solveLower(l: Float64Array, n: number, b: Float64Array, stride: number = n): void {
   for (let i = 0; i < n; i++) {
-    const row = i * n;
+    const row = i * stride;
     let sum = b[i];
     for (let k = 0; k < i; k++) sum -= l[row + k] * b[k];
     b[i] = sum / l[row + i];
   }
 }
 
-/** Solves Lᵀ x = b in place (L n × n lower triangular), column-oriented so L is read by rows. */
-export function solveLowerTranspose(l: Float64Array, n: number, b: Float64Array): void {
+/** Solves Lᵀ x = b in place (L as in solveLower), column-oriented so L is read by rows. */
+export function solveLowerTranspose(l: Float64Array, n: number, b: Float64Array, stride: number = n): void {
   for (let i = n - 1; i >= 0; i--) {
-    const row = i * n;
+    const row = i * stride;
     const x = b[i] / l[row + i];
     b[i] = x;
     for (let k = 0; k < i; k++) b[k] -= l[row + k] * x;
