@@ -22,13 +22,14 @@ export interface TableMoments {
   droppedColumns: string[];
 }
 
-export async function tableMoments(source: ByteSource, partial?: Partial<FitOptions>, control?: RunControl): Promise<TableMoments> {
+/** `byteBudget`: read only about this many leading bytes (a quick estimate, e.g. of the means). */
+export async function tableMoments(source: ByteSource, partial?: Partial<FitOptions>, control?: RunControl, byteBudget?: number): Promise<TableMoments> {
   const options = resolveOptions(partial);
   const inspection = await inspectTable(source, options.read, control);
   const roles = assignRoles(inspection, options);
   let features = roles.features;
   const pass = (columns: typeof features) =>
-    firstPass(source, inspection, { label: roles.label.index, features: columns.map((c) => c.index), featureNames: columns.map((c) => c.name), moments: true }, control);
+    firstPass(source, inspection, { label: roles.label.index, features: columns.map((c) => c.index), featureNames: columns.map((c) => c.name), moments: true }, control, byteBudget !== undefined && byteBudget < source.size ? byteBudget : undefined);
   let result = await pass(features);
   const droppedColumns: string[] = [];
   if (options.missing === 'drop-columns') {

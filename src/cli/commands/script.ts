@@ -8,7 +8,7 @@
 import { resolve } from 'node:path';
 import { version } from '../../../package.json';
 import { analyze, resolveOptions } from '../../core/analyze';
-import { momentsQueryForTable, reproductionScript, SCRIPT_LANGUAGES, SQL_DIALECTS, type ScriptLanguage, type SqlDialect } from '../../core/scripts/index';
+import { momentsQueryForTable, reproductionScript, SCRIPT_LANGUAGES, shiftsFromMoments, SQL_DIALECTS, type ScriptLanguage, type SqlDialect } from '../../core/scripts/index';
 import { tableMoments } from '../../core/tableMoments';
 import { fileSha256 } from '../../node/fileSha256';
 import type { OptionSpec, ParsedArgs } from '../args';
@@ -56,10 +56,9 @@ async function runScript(args: ParsedArgs, io: CommandIO): Promise<number> {
   let text: string;
   try {
     if (language === 'sql') {
-      const table = tableMoments(source, options, { signal: io.signal });
-      const { moments, label } = await table;
+      const { moments, label } = await tableMoments(source, options, { signal: io.signal });
       const sha256 = await fileSha256(fullPath);
-      text = momentsQueryForTable(moments, label, {
+      text = momentsQueryForTable(label, moments.features, shiftsFromMoments(moments, moments.features), {
         dialect: (valueOf(args, 'dialect') ?? 'ansi') as SqlDialect,
         table: valueOf(args, 'table') ?? tableName(input),
         ...(valueOf(args, 'schema') !== undefined ? { schema: valueOf(args, 'schema')! } : {}),

@@ -36,25 +36,24 @@ export interface MomentsQueryOptions {
   table: string;
   schema?: string;
   generator: string;
-  /** Where the shifts came from, for the comment on top (e.g. the file's name and SHA-256). */
+  /** Where the columns came from, for the comment on top (e.g. the file's name and SHA-256). */
   fileDescription: string;
   maxAggregates?: number;
 }
 
 /**
- * The moments query for a table holding the same columns as the file whose moments are given: the
- * same label and features (every feature that screens rows), each shifted by its overall mean
- * (rounded), so the sums lose few digits to cancellation.
+ * The moments query for a table holding the columns of a file: its label and the features that
+ * screen rows, each shifted by `shifts[j]` (an estimate of its mean, rounded to 6 significant
+ * digits here; any finite value is correct, a close one keeps the sums accurate).
  */
-export function momentsQueryForTable(moments: Moments, label: string, options: MomentsQueryOptions): string {
-  const mean = overallMean(moments);
+export function momentsQueryForTable(label: string, features: readonly string[], shifts: readonly number[], options: MomentsQueryOptions): string {
   return momentsQuery({
     dialect: options.dialect,
     table: options.table,
     ...(options.schema !== undefined ? { schema: options.schema } : {}),
     label,
-    features: [...moments.features],
-    shifts: moments.features.map((_, j) => roundedShift(mean[j]!)),
+    features: [...features],
+    shifts: shifts.map(roundedShift),
     ...(options.maxAggregates !== undefined ? { maxAggregates: options.maxAggregates } : {}),
     provenance: [
       `Per-class moments for ${options.generator}: run on a table with the columns of ${options.fileDescription}.`,
@@ -62,3 +61,15 @@ export function momentsQueryForTable(moments: Moments, label: string, options: M
     ],
   });
 }
+
+/** The shifts for `features` from moments (the overall mean of each; 0 for a feature they lack). */
+export function shiftsFromMoments(moments: Moments, features: readonly string[]): number[] {
+  const mean = overallMean(moments);
+  return features.map((name) => {
+    const j = moments.features.indexOf(name);
+    return j < 0 ? 0 : mean[j]!;
+  });
+}
+
+/** The features that screen rows in a fit (solved and removed ones, not those dropped for missing values), in file order. */
+export { screenedFeatures } from './plan';

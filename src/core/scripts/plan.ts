@@ -59,12 +59,17 @@ export const SCRIPT_TOLERANCE = 1e-8;
  */
 const UNSCREENED_REASONS = new Set(['missing-values', 'missing']);
 
+/** Every feature whose missing or non-finite value drops a row in this fit, in file order. */
+export function screenedFeatures(report: FitReport, columnsInFileOrder: readonly string[]): string[] {
+  const removed = new Set(report.removedFeatures.filter((r) => !UNSCREENED_REASONS.has(r.reason)).map((r) => r.feature));
+  const used = new Set(report.features);
+  return columnsInFileOrder.filter((name) => used.has(name) || removed.has(name));
+}
+
 export function planFromReport(report: FitReport, inspection: TableInspection, generator: string, dataPath: string): ReproductionPlan {
   if (report.source.sha256 === undefined) throw new RangeError('The report has no SHA-256 of its data file; compute it before generating a script.');
   if (report.provisional) throw new RangeError('A provisional report (from the first bytes only) cannot be reproduced; fit the whole file first.');
-  const removed = new Set(report.removedFeatures.filter((r) => !UNSCREENED_REASONS.has(r.reason)).map((r) => r.feature));
-  const used = new Set(report.features);
-  const screenedFeatures = inspection.columns.map((c) => c.name).filter((name) => used.has(name) || removed.has(name));
+  const screened = screenedFeatures(report, inspection.columns.map((c) => c.name));
   const cvUsed = report.accuracy.crossValidated;
   const folds = cvUsed && cvUsed.method.startsWith('kfold:') ? Number(cvUsed.method.slice('kfold:'.length)) : undefined;
   const cv: ReproductionPlan['cv'] =
@@ -82,7 +87,7 @@ export function planFromReport(report: FitReport, inspection: TableInspection, g
     decimalComma: read.decimalComma === true,
     thousandsSeparator: read.thousandsSeparator !== undefined && read.thousandsSeparator !== '' ? read.thousandsSeparator : null,
     label: report.label,
-    screenedFeatures,
+    screenedFeatures: screened,
     features: [...report.features],
     solver: report.solver,
     priors: report.options.priors,

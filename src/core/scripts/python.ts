@@ -165,10 +165,16 @@ def require(names, wanted):
         fail(f'the data file has no column {absent[0]!r} (columns: {names!r})')
 
 
+# JavaScript's \s: the spaces a label may have around a number and still sort as one.
+LABEL_SPACE = '[\t\n\v\f\r \u00a0\u1680\u2000-\u200a\u2028\u2029\u202f\u205f\u3000\ufeff]'
+DECIMAL_LABEL = re.compile(LABEL_SPACE + r'*[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][-+]?[0-9]+)?' + LABEL_SPACE + '*')
+LABEL_PADDING = re.compile('^' + LABEL_SPACE + '+|' + LABEL_SPACE + '+$')
+
+
 def sort_labels(labels):
-    """Numeric labels by value when every label is a number, else by code point."""
-    if all(NUMBER.fullmatch(label) for label in labels):
-        return sorted(labels, key=lambda label: (float(label.replace(',', '.')), label))
+    """By numeric value when every label reads as a decimal number, else by code point."""
+    if labels and all(DECIMAL_LABEL.fullmatch(label) for label in labels):
+        return sorted(labels, key=lambda label: (float(LABEL_PADDING.sub('', label)), label))
     return sorted(labels)
 
 

@@ -199,12 +199,19 @@ read_table <- function(path) {
   list(labels = labels, missing = trim_spaces(labels) %in% MISSING_TOKENS, features = features)
 }
 
-code_point_order <- function(labels) order(labels, method = "radix")
+# JavaScript's \s: the spaces a label may have around a number and still sort as one.
+LABEL_SPACE <- "[\\t\\n\\x{0b}\\f\\r \\x{a0}\\x{1680}\\x{2000}-\\x{200a}\\x{2028}\\x{2029}\\x{202f}\\x{205f}\\x{3000}\\x{feff}]"
+DECIMAL_LABEL <- paste0("^", LABEL_SPACE, "*[-+]?(?:[0-9]+(?:\\.[0-9]*)?|\\.[0-9]+)(?:[eE][-+]?[0-9]+)?", LABEL_SPACE, "*$")
 
 sort_labels <- function(labels) {
-  # Numeric labels by value when every label is a number, else by code point.
-  if (all(grepl(NUMBER, labels, perl = TRUE))) return(labels[order(as.numeric(sub(",", ".", labels, fixed = TRUE)), labels, method = "radix")])
-  labels[code_point_order(labels)]
+  # By numeric value when every label reads as a decimal number, else by code point (radix order
+  # compares UTF-8 bytes, which is code point order).
+  labels <- enc2utf8(labels)
+  if (length(labels) > 0 && all(grepl(DECIMAL_LABEL, labels, perl = TRUE))) {
+    values <- as.numeric(gsub(paste0("^", LABEL_SPACE, "+|", LABEL_SPACE, "+$"), "", labels, perl = TRUE))
+    return(labels[order(values, labels, method = "radix")])
+  }
+  labels[order(labels, method = "radix")]
 }
 
 used_rows <- function(path) {

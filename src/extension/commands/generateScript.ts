@@ -1,0 +1,129 @@
+/**
+ * `scatterwise.generateScript`: asks for a language (Python, R, or SQL and its dialect), fits the
+ * file in a worker thread (as the editor does: never on the host's event loop), and opens the
+ * generated script in a new untitled editor. Called from the palette (the active data file) or by
+ * the panel with the file's URI and its current options. The data file is only read.
+ *
+ * Registration (extension.ts): `context.subscriptions.push(registerGenerateScript(workers))`, and a
+ * `contributes.commands` entry { "command": "scatterwise.generateScript", "title": "Generate Fit
+ * Script", "category": "Scatterwise" }.
+ */
+import * as vscode from 'vscode';
+import { version } from '../../../package.json';
+import { DataError } from '../../core/errors';
+import { inspectTable } from '../../core/read/index';
+import { momentsQueryForTable, reproductionScript, screenedFeatures, shiftsFromMoments, SQL_DIALECTS, type SqlDialect } from '../../core/scripts/index';
+import { tableMoments } from '../../core/tableMoments';
+import type { FitOptions, FitReport } from '../../core/types';
+import { openFileSource } from '../../node/fileSource';
+import type { EditableOptions } from '../../shared/messages';
+import type { FitWorkers } from '../fitWorkers';
+import { readSettings } from '../settings';
+
+export const GENERATE_SCRIPT_COMMAND = 'scatterwise.generateScript';
+
+/** Bytes read to estimate the means the SQL query shifts by (any value near the mean will do). */
+const SHIFT_ESTIMATE_BYTES = 4 * 1024 * 1024;
+
+type Language = 'python' | 'r' | 'sql';
+
+const LANGUAGES: (vscode.QuickPickItem & { id: Language })[] = [
+  { id: 'python', label: 'Python', description: 'pandas + scikit-learn: refits the file and checks the figures' },
+  { id: 'r', label: 'R', description: 'base R + MASS: refits the file and checks the figures' },
+  { id: 'sql', label: 'SQL', description: 'per-class moments computed in a database, for scatterwise fit --moments' },
+];
+
+const EDITOR_LANGUAGE: Record<Language, string> = { python: 'python', r: 'r', sql: 'sql' };
+
+/** The data file the command is about: the one passed, else the active separability editor's or text editor's. */
+function targetFile(passed: unknown): vscode.Uri | undefined {
+  if (passed instanceof vscode.Uri) return passed;
+  const input = vscode.window.tabGroups.activeTabGroup.activeTab?.input;
+  if (input instanceof vscode.TabInputCustom || input instanceof vscode.TabInputText) return input.uri;
+  return vscode.window.activeTextEditor?.document.uri;
+}
+
+/** Fits the whole file in a worker; resolves to the final report (with the file's SHA-256). */
+function fitInWorker(workers: FitWorkers, path: string, options: Partial<FitOptions>, token: vscode.CancellationToken): Promise<FitReport> {
+  return new Promise((resolve, reject) => {
+    const job = workers.start(
+      { path, options, provisionalBytes: Number.MAX_SAFE_INTEGER },
+      {
+        progress: () => undefined,
+        hashed: () => undefined,
+        result: (report) => {
+          if (!report.provisional) resolve(report);
+        },
+        failed: (failure) => reject(new DataError(failure.code, failure.message, failure.where ?? {}, failure.hint)),
+      },
+    );
+    token.onCancellationRequested(() => {
+      job.cancel();
+      reject(new vscode.CancellationError());
+    });
+  });
+}
+
+async function generate(workers: FitWorkers, passedUri: unknown, passedOptions: unknown): Promise<void> {
+  const uri = targetFile(passedUri);
+  if (uri === undefined || !/\.(csv|tsv|tab|parquet)$/i.test(uri.path)) {
+    void vscode.window.showErrorMessage('Scatterwise: open a CSV, TSV or Parquet file first, then generate its fit script.');
+    return;
+  }
+  if (uri.scheme !== 'file') {
+    void vscode.window.showErrorMessage('Scatterwise: fit scripts can be generated for files on this machine only.');
+    return;
+  }
+  const language = await vscode.window.showQuickPick(LANGUAGES, { title: 'Generate fit script', placeHolder: 'Language of the script' });
+  if (!language) return;
+  let dialect: SqlDialect | undefined;
+  if (language.id === 'sql') {
+    const picked = await vscode.window.showQuickPick(
+      SQL_DIALECTS.map((d) => ({ label: d })),
+      { title: 'Generate fit script', placeHolder: 'SQL dialect (identifier and string quoting)' },
+    );
+    if (!picked) return;
+    dialect = picked.label as SqlDialect;
+  }
+  const panel = (passedOptions ?? {}) as Partial<EditableOptions>;
+  const options: Partial<FitOptions> = { ...readSettings().options, ...Object.fromEntries(Object.entries(panel).filter(([, v]) => v !== undefined)) };
+  const path = uri.fsPath;
+  const generator = `Scatterwise ${version}`;
+  const text = await vscode.window.withProgress(
+    { location: vscode.ProgressLocation.Notification, title: `Scatterwise: fitting ${uri.path.split('/').pop()} for the ${language.label} script`, cancellable: true },
+    async (_progress, token) => {
+      const report = await fitInWorker(workers, path, options, token);
+      // The inspection reads the head of the file only (sniffed delimiter, header, column order).
+      const source = await openFileSource(path);
+      try {
+        const inspection = await inspectTable(source, report.options.read);
+        if (language.id !== 'sql') return reproductionScript(language.id, report, inspection, generator, path);
+        const features = screenedFeatures(report, inspection.columns.map((c) => c.name));
+        const head = await tableMoments(source, { ...report.options, features, label: report.label }, undefined, SHIFT_ESTIMATE_BYTES);
+        const table = uri.path.split('/').pop()!.replace(/\.[^.]*$/, '');
+        return momentsQueryForTable(report.label, features, shiftsFromMoments(head.moments, features), {
+          dialect: dialect!,
+          table,
+          generator,
+          fileDescription: `${report.source.name} (SHA-256 ${report.source.sha256 ?? 'not computed'})`,
+        });
+      } finally {
+        await source.close();
+      }
+    },
+  );
+  const document = await vscode.workspace.openTextDocument({ language: EDITOR_LANGUAGE[language.id], content: text });
+  await vscode.window.showTextDocument(document, { preview: false });
+}
+
+export function registerGenerateScript(workers: FitWorkers): vscode.Disposable {
+  return vscode.commands.registerCommand(GENERATE_SCRIPT_COMMAND, async (uri?: unknown, options?: unknown) => {
+    try {
+      await generate(workers, uri, options);
+    } catch (error) {
+      if (error instanceof vscode.CancellationError) return;
+      const message = error instanceof DataError ? `${error.message}${error.hint ? ` ${error.hint}` : ''}` : error instanceof Error ? error.message : String(error);
+      void vscode.window.showErrorMessage(`Scatterwise: could not generate the script: ${message}`);
+    }
+  });
+}
