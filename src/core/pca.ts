@@ -3,7 +3,7 @@
  * the moments: the total scatter S_T = S_W + S_B divided by n − 1 is the covariance matrix; with
  * `standardized` it is turned into the correlation matrix (each feature divided by its standard
  * deviation). A feature with zero variance cannot be standardized: its standardized values are
- * taken as 0, so it contributes a zero eigenvalue and zero loadings.
+ * taken as 0, so it contributes a zero eigenvalue and loads on no other component.
  *
  * All eigenvalues are computed (tridiagonalisation and implicit QL), but eigenvectors only for
  * the first c = min(p, 10) components (inverse iteration), so a 1000-feature table costs well
