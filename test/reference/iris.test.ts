@@ -146,15 +146,21 @@ describe('Iris: our analysis against numpy/scipy/scikit-learn and R MASS', funct
     });
 
     it('per-feature ANOVA F, p, η²', function () {
-      const F = report.univariate.map((u) => u.F);
-      const p = report.univariate.map((u) => u.p);
-      assert.deepEqual(report.univariate.map((u) => u.feature), report.features);
+      // The report may order the features (e.g. by F); the references are in input order.
+      const byFeature = report.features.map((f) => {
+        const u = report.univariate.find((entry) => entry.feature === f);
+        assert.ok(u, `no univariate entry for ${f}`);
+        return u;
+      });
+      assert.equal(report.univariate.length, report.features.length);
+      const F = byFeature.map((u) => u.F);
+      const p = byFeature.map((u) => u.p);
       assertClose(F, figure(py, 'univariate.F'), 'ANOVA F'); // sklearn f_classif
       assertClose(p, figure(py, 'univariate.p'), 'ANOVA p', { relativeOnly: true }); // sklearn f_classif
       const aov = figure<{ F: number[]; p: number[] }>(rr, 'univariate');
       assertClose(F, { source: aov.source, value: aov.value.F }, 'ANOVA F'); // R summary(aov())
       assertClose(p, { source: aov.source, value: aov.value.p }, 'ANOVA p', { relativeOnly: true });
-      assertClose(report.univariate.map((u) => u.etaSquared), figure(py, 'univariate.etaSquared'), 'η²'); // numpy SS_B/SS_T
+      assertClose(byFeature.map((u) => u.etaSquared), figure(py, 'univariate.etaSquared'), 'η²'); // numpy SS_B/SS_T
     });
 
     it('Mahalanobis distances between class centroids', function () {
