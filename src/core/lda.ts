@@ -65,6 +65,8 @@ export interface LdaSolution {
   classCounts: number[];
   labels: string[];
   priors: Float64Array;
+  /** How the priors were set (leave-one-out re-estimates empirical priors). */
+  priorsRule: 'empirical' | 'uniform';
   /** r */
   overallMean: Float64Array;
   /** K × r */
@@ -385,6 +387,7 @@ export function solvePooled(p: PooledMoments, options: LdaOptions): LdaSolution 
     classCounts: counts,
     labels,
     priors,
+    priorsRule: options.priors,
     overallMean: Float64Array.from(kept, (j) => overall[j]),
     classMeans,
     withinScatter,
@@ -428,6 +431,7 @@ function emptySolution(
     classCounts: counts,
     labels,
     priors,
+    priorsRule: options.priors,
     overallMean: new Float64Array(0),
     classMeans: new Float64Array(0),
     withinScatter: new Float64Array(0),

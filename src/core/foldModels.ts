@@ -1,0 +1,268 @@
+/**
+ * k-fold cross-validation models from one pass over the rows. Per fold only the pooled
+ * within-class scatter of the fold's rows (d × d) and per class its count and mean are kept, so
+ * memory is kFolds·d² + kFolds·K·d, not kFolds·K·d². A fold's training set is the total minus the
+ * fold: per class n_R = n_T − n_P, m_R = m_T + (n_P/n_R)(m_T − m_P), and pooled
+ *   S_W,R = S_W,T − S_W,P − Σ_c (n_P n_T / n_R) e_P e_Pᵀ,   e_P = m_P − m_T
+ * (Chan's merge formula solved for one side; moments.ts). Each fold is solved with solvePooled and
+ * its rows are classified with that fold's model.
+ *
+ * Solver and shrinkage: every fold uses the full fit's solver as resolved (auto decides once, on
+ * all rows), and with shrinkage the full fit's Ledoit–Wolf intensity α (like leave-one-out), its
+ * target μ = tr(S_W,R)/(r·n_R) being the training set's own. A per-fold intensity would need
+ * Σ‖z‖⁴ of the training set, centred on the training class means; that depends on e_Pᵀ S_P,c e_P
+ * for each class's fold part S_P,c, i.e. on the kFolds·K·d² per-class fold scatters this module
+ * exists not to keep.
+ *
+ * Rows are buffered per fold, 64 at a time, each centred on its class's block mean before one
+ * blocked cross-product update; the class-mean corrections ride along as extra block rows.
+ */
+import type { Classifier } from './classify';
+import { createClassifier } from './classify';
+import { DataError } from './errors';
+import { solveLda, solvePooled, type LdaOptions, type LdaSolution, type PooledMoments } from './lda';
+import { crossProductUpdate, mirrorUpper } from './linalg';
+import type { Moments } from './moments';
+
+const BLOCK_ROWS = 64;
+
+interface FoldState {
+  /** d × d upper triangle: pooled within-class scatter of the fold's rows. */
+  scatter: Float64Array;
+  /** Per class index: count and mean relative to the class's shift. */
+  counts: number[];
+  means: Float64Array[];
+  /** d × (2·BLOCK_ROWS) transposed buffer of raw rows, then centred rows and correction rows. */
+  block: Float64Array;
+  classes: Int32Array;
+  buffered: number;
+}
+
+/** Per fold: the pooled within-class scatter and per-class counts and means (see the module comment). */
+export class FoldMomentsAccumulator {
+  private readonly d: number;
+  private readonly folds: FoldState[];
+  private readonly labels: string[] = [];
+  private readonly byLabel = new Map<string, number>();
+  private readonly shifts: Float64Array[] = [];
+  private slotOf = new Int32Array(8);
+  private readonly stride = 2 * BLOCK_ROWS;
+  private blockSums = new Float64Array(0);
+
+  constructor(
+    readonly features: string[],
+    readonly kFolds: number,
+  ) {
+    if (!Number.isInteger(kFolds) || kFolds < 2) throw new DataError('bad-option', `k-fold cross-validation needs at least 2 folds, not ${kFolds}.`);
+    this.d = features.length;
+    this.folds = Array.from({ length: kFolds }, () => ({
+      scatter: new Float64Array(this.d * this.d),
+      counts: [],
+      means: [],
+      block: new Float64Array(this.d * this.stride),
+      classes: new Int32Array(BLOCK_ROWS),
+      buffered: 0,
+    }));
+  }
+
+  /** Rows as for MomentsAccumulator.add, with each row's fold (0..kFolds−1). */
+  add(values: Float64Array, classIds: Int32Array, rows: number, labels: readonly string[], folds: Int32Array): void {
+    const d = this.d;
+    const local = new Int32Array(labels.length).fill(-1);
+    for (let r = 0; r < rows; r++) {
+      const id = classIds[r];
+      let c = local[id];
+      if (c < 0) {
+        if (!(id >= 0 && id < labels.length)) throw new RangeError(`class id ${id} is outside the label dictionary (${labels.length} labels)`);
+        c = this.classIndex(labels[id], values.subarray(r * d, (r + 1) * d));
+        local[id] = c;
+      }
+      const f = folds[r];
+      if (!(f >= 0 && f < this.kFolds)) throw new RangeError(`fold ${f} is outside 0..${this.kFolds - 1}`);
+      const fold = this.folds[f];
+      const t = fold.buffered;
+      const base = r * d;
+      for (let i = 0; i < d; i++) fold.block[i * this.stride + t] = values[base + i];
+      fold.classes[t] = c;
+      fold.buffered = t + 1;
+      if (t + 1 === BLOCK_ROWS) this.flush(fold);
+    }
+  }
+
+  private classIndex(label: string, firstRow: Float64Array): number {
+    let c = this.byLabel.get(label);
+    if (c === undefined) {
+      c = this.labels.length;
+      this.byLabel.set(label, c);
+      this.labels.push(label);
+      this.shifts.push(Float64Array.from(firstRow));
+      for (const fold of this.folds) {
+        fold.counts.push(0);
+        fold.means.push(new Float64Array(this.d));
+      }
+    }
+    return c;
+  }
+
+  private flush(fold: FoldState): void {
+    const nb = fold.buffered;
+    if (nb === 0) return;
+    const d = this.d;
+    const stride = this.stride;
+    const y = fold.block;
+    const K = this.labels.length;
+    // Slot of each class present in the block, and the block sums per slot (slots × d).
+    const slots: number[] = [];
+    if (this.slotOf.length < K) this.slotOf = new Int32Array(2 * K);
+    const slotOf = this.slotOf;
+    slotOf.fill(-1);
+    const slotCounts: number[] = [];
+    for (let t = 0; t < nb; t++) {
+      const c = fold.classes[t];
+      if (slotOf[c] < 0) {
+        slotOf[c] = slots.length;
+        slots.push(c);
+        slotCounts.push(0);
+      }
+      slotCounts[slotOf[c]]++;
+    }
+    if (this.blockSums.length < slots.length * d) this.blockSums = new Float64Array(Math.max(slots.length, 8) * d);
+    const sums = this.blockSums;
+    sums.fill(0, 0, slots.length * d);
+    for (let i = 0; i < d; i++) {
+      const col = i * stride;
+      let total = 0;
+      for (let t = 0; t < nb; t++) {
+        const c = fold.classes[t];
+        const v = y[col + t] - this.shifts[c][i];
+        y[col + t] = v;
+        sums[slotOf[c] * d + i] += v;
+        total += v;
+      }
+      if (!Number.isFinite(total)) {
+        throw new DataError('non-finite-value', `A value in column "${this.features[i]}" is not a finite number.`, { column: this.features[i] });
+      }
+    }
+    for (let s = 0; s < slots.length; s++) for (let i = 0; i < d; i++) sums[s * d + i] /= slotCounts[s];
+    // Centre each row on its class's block mean.
+    for (let i = 0; i < d; i++) {
+      const col = i * stride;
+      for (let t = 0; t < nb; t++) y[col + t] -= sums[slotOf[fold.classes[t]] * d + i];
+    }
+    // Merge each class's block part into the fold's running class mean: the scatter gains
+    // (n_A n_B / n) δδᵀ, appended as a row √(n_A n_B / n) δ.
+    let extra = 0;
+    for (let s = 0; s < slots.length; s++) {
+      const c = slots[s];
+      const nA = fold.counts[c];
+      const nB = slotCounts[s];
+      const n = nA + nB;
+      const mean = fold.means[c];
+      const weight = Math.sqrt((nA * nB) / n);
+      for (let i = 0; i < d; i++) {
+        const delta = sums[s * d + i] - mean[i];
+        if (nA > 0) y[i * stride + nb + extra] = weight * delta;
+        mean[i] += (nB / n) * delta;
+      }
+      if (nA > 0) extra++;
+      fold.counts[c] = n;
+    }
+    crossProductUpdate(fold.scatter, d, y, stride, nb + extra);
+    fold.buffered = 0;
+  }
+
+  /** The fold parts: per fold the pooled within-class scatter (d × d full) and per label count and mean. */
+  parts(): { withinScatter: Float64Array; counts: Map<string, number>; means: Map<string, Float64Array> }[] {
+    const d = this.d;
+    return this.folds.map((fold) => {
+      this.flush(fold);
+      const withinScatter = Float64Array.from(fold.scatter);
+      mirrorUpper(withinScatter, d);
+      const counts = new Map<string, number>();
+      const means = new Map<string, Float64Array>();
+      this.labels.forEach((label, c) => {
+        if (fold.counts[c] === 0) return;
+        counts.set(label, fold.counts[c]);
+        means.set(
+          label,
+          Float64Array.from(fold.means[c], (v, i) => this.shifts[c][i] + v),
+        );
+      });
+      return { withinScatter, counts, means };
+    });
+  }
+}
+
+/**
+ * One classifier per fold, trained on total − fold (see the module comment). Posteriors and the
+ * returned index are in the full solution's class order (a class absent from a training set gets
+ * posterior 0). `full` is the fit on all rows (solved here when not given).
+ */
+export function foldClassifiers(total: Moments, folds: FoldMomentsAccumulator, options: LdaOptions, full?: LdaSolution): Classifier[] {
+  const solution = full ?? solveLda(total, options);
+  const fixed: LdaOptions =
+    solution.solver === 'shrinkage'
+      ? { solver: 'shrinkage', priors: options.priors, shrinkageIntensity: solution.shrinkage }
+      : { solver: 'exact', priors: options.priors };
+  const d = total.features.length;
+  const sameFeatures = folds.features.length === d && folds.features.every((f, i) => f === total.features[i]);
+  if (!sameFeatures) throw new DataError('moments-mismatch', 'The fold moments and the total moments are over different features.');
+  const totalWithin = new Float64Array(d * d);
+  for (const c of total.classes) for (let k = 0; k < d * d; k++) totalWithin[k] += c.scatter[k];
+  return folds.parts().map((part) => {
+    const withinScatter = Float64Array.from(totalWithin);
+    for (let k = 0; k < d * d; k++) withinScatter[k] -= part.withinScatter[k];
+    const training: PooledMoments = {
+      features: [...total.features],
+      labels: [],
+      counts: [],
+      means: [],
+      withinScatter,
+      quartic: null,
+      magnitude: new Float64Array(d),
+      singleValue: new Uint8Array(d).fill(1),
+      singleValueWithinClasses: new Uint8Array(d).fill(1),
+    };
+    const lo = new Float64Array(d).fill(Infinity);
+    const hi = new Float64Array(d).fill(-Infinity);
+    for (const c of total.classes) {
+      const nP = part.counts.get(c.label) ?? 0;
+      if (nP > c.count) throw new DataError('moments-mismatch', `A fold holds ${nP} rows of class "${c.label}", more than the ${c.count} in all.`);
+      const nR = c.count - nP;
+      if (nR === 0) continue;
+      const mean = Float64Array.from(c.mean);
+      if (nP > 0) {
+        const p = part.means.get(c.label)!;
+        const weight = (nP * c.count) / nR;
+        const e = Float64Array.from(p, (v, i) => v - c.mean[i]);
+        for (let i = 0; i < d; i++) {
+          mean[i] = c.mean[i] - (nP / nR) * e[i];
+          const row = i * d;
+          for (let j = 0; j < d; j++) withinScatter[row + j] -= weight * e[i] * e[j];
+        }
+      }
+      training.labels.push(c.label);
+      training.counts.push(nR);
+      training.means.push(mean);
+      for (let j = 0; j < d; j++) {
+        training.magnitude[j] = Math.max(training.magnitude[j], Math.abs(c.min[j]), Math.abs(c.max[j]));
+        if (c.min[j] !== c.max[j]) training.singleValueWithinClasses[j] = 0;
+        lo[j] = Math.min(lo[j], c.min[j]);
+        hi[j] = Math.max(hi[j], c.max[j]);
+      }
+    }
+    for (let j = 0; j < d; j++) if (lo[j] !== hi[j]) training.singleValue[j] = 0;
+    const model = solvePooled(training, fixed);
+    const inner = createClassifier(model);
+    const toFull = Int32Array.from(model.labels, (l) => solution.labels.indexOf(l));
+    const posterior = new Float64Array(model.labels.length);
+    return {
+      predict(x: Float64Array, out: Float64Array): number {
+        const predicted = inner.predict(x, posterior);
+        out.fill(0, 0, solution.labels.length);
+        for (let i = 0; i < toFull.length; i++) out[toFull[i]] = posterior[i];
+        return toFull[predicted];
+      },
+    };
+  });
+}
