@@ -7,9 +7,15 @@
  */
 import * as assert from 'node:assert/strict';
 import { spawnSync, type SpawnSyncReturns } from 'node:child_process';
-import { chownSync, existsSync, mkdtempSync, readdirSync, rmSync } from 'node:fs';
+import { chownSync, existsSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { analyze } from '../../src/core/analyze';
+import { reproductionScript } from '../../src/core/scripts/index';
+import type { ExpectedFigures } from '../../src/core/scripts/plan';
+import type { FitOptions, FitReport } from '../../src/core/types';
+import { fileSha256 } from '../../src/node/fileSha256';
+import { openFileSource } from '../../src/node/fileSource';
 
 export interface Tool {
   name: string;
@@ -120,3 +126,57 @@ export function startPostgres(): Postgres | null {
     },
   };
 }
+
+// ---- generated scripts: write, run, compare with the core ---------------------------------------
+
+/** Relative tolerance of script figures against the core's (the acceptance figure). */
+const SCRIPT_TOLERANCE = 1e-8;
+
+/** The report of `path` with its SHA-256, and the script in `language` written to `folder`. */
+export async function fitAndWriteScript(path: string, options: Partial<FitOptions>, language: 'python' | 'r', folder: string): Promise<{ report: FitReport; script: string }> {
+  const source = await openFileSource(path);
+  let text: string;
+  let report: FitReport;
+  try {
+    const result = await analyze(source, options);
+    report = { ...result.report, source: { ...result.report.source, sha256: await fileSha256(path) } };
+    text = reproductionScript(language, report, result.inspection, 'scatterwise (test)', path);
+  } finally {
+    await source.close();
+  }
+  const script = join(folder, language === 'python' ? 'fit.py' : 'fit.R');
+  writeFileSync(script, text);
+  return { report, script };
+}
+
+export function runScript(tool: Tool, script: string, args: string[], cwd: string): { status: number | null; stdout: string; stderr: string } {
+  const out = run(tool.command, [script, ...args], { cwd, env: { ...process.env, LC_ALL: 'C', LANG: 'C' } });
+  return { status: out.status, stdout: out.stdout, stderr: out.stderr };
+}
+
+function close(actual: number, expected: number, scale: number, what: string): void {
+  assert.ok(Math.abs(actual - expected) <= SCRIPT_TOLERANCE * Math.max(Math.abs(expected), 1e-6 * scale), `${what}: script ${actual}, core ${expected}`);
+}
+
+/** The script's printed figures against the core's report. */
+export function assertFiguresMatch(printed: ExpectedFigures, report: FitReport): void {
+  assert.equal(printed.rowsUsed, report.rows.used, 'rows used');
+  assert.deepEqual(printed.labels, report.classes.map((c) => c.label), 'class labels and order');
+  assert.deepEqual(printed.counts, report.classes.map((c) => c.count), 'class counts');
+  const eigen = report.discriminant.eigenvalues;
+  assert.equal(printed.eigenvalues.length, eigen.length, 'number of discriminants');
+  const top = Math.max(...eigen.map(Math.abs));
+  printed.eigenvalues.forEach((v, i) => close(v, eigen[i]!, top, `eigenvalue ${i + 1}`));
+  printed.explainedRatio.forEach((v, i) => close(v, report.discriminant.explainedRatio[i]!, 1, `explained ratio ${i + 1}`));
+  close(printed.shrinkage, report.shrinkage, 1, 'shrinkage intensity');
+  close(printed.trainingAccuracy, report.accuracy.training, 1, 'training accuracy');
+  assert.deepEqual(printed.confusion, report.confusion.matrix, 'training confusion');
+  const cv = report.accuracy.crossValidated;
+  if (cv === null) assert.equal(printed.crossValidation, null, 'no cross-validation');
+  else {
+    assert.ok(printed.crossValidation, 'cross-validation figures');
+    close(printed.crossValidation.accuracy, cv.value, 1, `cross-validated accuracy (${cv.method})`);
+    assert.deepEqual(printed.crossValidation.confusion, report.crossValidatedConfusion!.matrix, 'cross-validated confusion');
+  }
+}
+

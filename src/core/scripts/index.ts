@@ -11,7 +11,7 @@ import type { FitReport } from '../types';
 import { planFromReport } from './plan';
 import { pythonScript } from './python';
 import { rScript } from './r';
-import { momentsQuery } from './sql';
+import { momentsQueryStatements } from './sql';
 import type { SqlDialect } from './quoting';
 
 export { SQL_DIALECTS, type SqlDialect } from './quoting';
@@ -47,7 +47,12 @@ export interface MomentsQueryOptions {
  * digits here; any finite value is correct, a close one keeps the sums accurate).
  */
 export function momentsQueryForTable(label: string, features: readonly string[], shifts: readonly number[], options: MomentsQueryOptions): string {
-  return momentsQuery({
+  return momentsQueryStatementsForTable(label, features, shifts, options).join('\n\n') + '\n';
+}
+
+/** The same query as separate statements (each a complete query ending in `;`). */
+export function momentsQueryStatementsForTable(label: string, features: readonly string[], shifts: readonly number[], options: MomentsQueryOptions): string[] {
+  return momentsQueryStatements({
     dialect: options.dialect,
     table: options.table,
     ...(options.schema !== undefined ? { schema: options.schema } : {}),

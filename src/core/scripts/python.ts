@@ -188,9 +188,10 @@ def used_rows(path):
 
 # ---- the fit: moments, discriminant eigenvalues, Gaussian classifier -----------------------------
 
-def fit(x, classes, k):
+def fit(x, classes, k, intensity=None):
     """Class counts and means, the within-class scatter as solved (Ledoit-Wolf shrunk when SOLVER is
-    shrinkage), the discriminant eigenvalues and the priors. classes: 0..k-1 per row."""
+    shrinkage, with the given intensity if one is given), the discriminant eigenvalues and the
+    priors. classes: 0..k-1 per row."""
     n, d = x.shape
     counts = np.bincount(classes, minlength=k).astype(float)
     means = np.zeros((k, d))
@@ -199,9 +200,16 @@ def fit(x, classes, k):
     centred = x - means[classes]
     within = centred.T @ centred
     shrinkage = 0.0
-    if SOLVER == 'shrinkage':
+    if SOLVER == 'shrinkage' and intensity is not None:
+        # A cross-validation fold keeps the full fit's intensity; the target mu*I is its own.
+        shrinkage = intensity
+        within = (1 - intensity) * within + intensity * np.trace(within) / d * np.eye(d)
+    elif SOLVER == 'shrinkage':
         # Ledoit & Wolf (2004) on the within-class-centred rows, original scale, towards mu*I.
         covariance, shrinkage = ledoit_wolf(centred, assume_centered=True)
+        if not shrinkage > 0:
+            # A zero or negative estimate means no shrinkage (as in the fit that made this script).
+            covariance, shrinkage = centred.T @ centred / n, 0.0
         within = n * covariance
     overall = counts @ means / n
     offsets = (means - overall) * np.sqrt(counts)[:, None]
@@ -222,36 +230,46 @@ def predict(model, x, k):
 
 
 def leave_one_out(model, x, classes, k):
-    """Exact leave-one-out by downdating: without row t of class c, n_c - 1 rows, mean
-    m_c' = (n_c m_c - x_t)/(n_c - 1), within S' = S - n_c/(n_c - 1) u u' with u = x_t - m_c,
-    covariance S'/(n - 1 - K), empirical priors re-estimated from the remaining rows. The inverse of
-    S' comes from Sherman-Morrison: e' S'^-1 e = e' S^-1 e + b (u' S^-1 e)^2 / (1 - b u' S^-1 u)."""
+    """Exact leave-one-out by downdating. Without row t of class c (a = n_c/(n_c - 1), v = x_t - m_c):
+    n_c - 1 rows, mean m_c' = (n_c m_c - x_t)/(n_c - 1), within scatter
+    S' = S - zeta a v v' - eps I, covariance S'/(n - 1 - K), empirical priors re-estimated from the
+    remaining rows. Exact solver: zeta = 1, eps = 0. Shrinkage: the left-out fit keeps the full
+    fit's intensity alpha, S' = (1 - alpha) S_raw' + alpha tr(S_raw')/r I, i.e. zeta = 1 - alpha,
+    eps = alpha a |v|^2 / r. With S = B B', B^-1 B^-T = Q diag(gamma) Q', coordinates
+    y = Q' B^-1 x turn S' into diag(h) - zeta a u u' (h = 1 - eps gamma, u = y - ybar_c), inverted by
+    Sherman-Morrison. A row whose S' is not positive definite is classified by the full fit."""
     n = model['n']
     counts = model['counts']
-    within = model['within']
-    if SOLVER == 'shrinkage':
-        within = shrunk_within_leave_one_out_base(model)
-    factor = np.linalg.cholesky(within)
+    r = x.shape[1]
+    factor = np.linalg.cholesky(model['within'])
     white_x = scipy.linalg.solve_triangular(factor, x.T, lower=True).T
     white_means = scipy.linalg.solve_triangular(factor, model['means'].T, lower=True).T
-    rows = np.arange(len(x))
-    beta = counts[classes] / (counts[classes] - 1)
-    white_u = white_x - white_means[classes]
-    h = (white_u ** 2).sum(axis=1)
+    alpha = model['shrinkage'] if SOLVER == 'shrinkage' else 0.0
+    gamma = np.zeros(r)
+    if alpha > 0:
+        inverse = scipy.linalg.solve_triangular(factor, np.eye(r), lower=True)
+        gamma, basis = np.linalg.eigh(inverse @ inverse.T)
+        white_x, white_means = white_x @ basis, white_means @ basis
+    a = counts[classes] / (counts[classes] - 1)
+    eps = alpha * a * ((x - model['means'][classes]) ** 2).sum(axis=1) / r
+    zeta_a = (1 - alpha) * a
+    h = 1 - eps[:, None] * gamma[None, :]
+    u = white_x - white_means[classes]
+    denominator = 1 - zeta_a * (u ** 2 / h).sum(axis=1)
+    usable = (h > 0).all(axis=1) & (denominator > 64 * np.finfo(float).eps * max(1, r))
     scores = np.empty((len(x), k))
-    for j in range(k):
-        e = white_x - white_means[j]
-        own = classes == j
-        e[own] = beta[own, None] * white_u[own]
-        quadratic = (e ** 2).sum(axis=1) + beta * ((white_u * e).sum(axis=1)) ** 2 / (1 - beta * h)
-        remaining = counts[j] - own
-        prior = remaining / (n - 1) if PRIORS == 'empirical' else np.full(len(x), 1.0 / k)
-        scores[:, j] = -0.5 * (n - 1 - k) * quadratic + np.log(prior)
-    return np.argmax(scores, axis=1)
-
-
-def shrunk_within_leave_one_out_base(model):
-    return model['within']
+    with np.errstate(divide='ignore', invalid='ignore'):
+        for j in range(k):
+            e = white_x - white_means[j]
+            own = classes == j
+            e[own] = a[own, None] * u[own]
+            quadratic = (e ** 2 / h).sum(axis=1) + zeta_a * ((e * u / h).sum(axis=1)) ** 2 / denominator
+            prior = (counts[j] - own) / (n - 1) if PRIORS == 'empirical' else np.full(len(x), 1.0 / k)
+            scores[:, j] = -0.5 * (n - 1 - k) * quadratic + np.log(prior)
+    predicted = np.argmax(scores, axis=1)
+    if not usable.all():
+        predicted[~usable] = predict(model, x[~usable], k)
+    return predicted
 
 
 def fold_of_rows(classes_by_appearance, folds, seed):
@@ -280,7 +298,9 @@ def fold_of_rows(classes_by_appearance, folds, seed):
     return out
 
 
-def k_fold(x, classes, appearance, k):
+def k_fold(model, x, classes, appearance, k):
+    """Each fold's rows classified by a fit to the other folds' rows (with the shrinkage solver,
+    at the full fit's intensity, as leave-one-out does)."""
     folds = CROSS_VALIDATION['folds']
     fold = fold_of_rows(appearance, folds, CROSS_VALIDATION['seed'])
     predicted = np.empty(len(x), dtype=int)
@@ -288,8 +308,8 @@ def k_fold(x, classes, appearance, k):
         test = fold == f
         if not test.any():
             continue
-        model = fit(x[~test], classes[~test], k)
-        predicted[test] = predict(model, x[test], k)
+        training = fit(x[~test], classes[~test], k, model['shrinkage'])
+        predicted[test] = predict(training, x[test], k)
     return predicted
 
 
@@ -324,7 +344,7 @@ def figures(path):
     }
     method = CROSS_VALIDATION['method']
     if method != 'none':
-        cv = leave_one_out(model, x, classes, k) if method == 'loo' else k_fold(x, classes, appearance, k)
+        cv = leave_one_out(model, x, classes, k) if method == 'loo' else k_fold(model, x, classes, appearance, k)
         result['crossValidation'] = {'method': method, **({'folds': CROSS_VALIDATION['folds']} if method == 'kfold' else {}),
                                      'accuracy': float((cv == classes).mean()), 'confusion': confusion(classes, cv, k).tolist()}
     return result

@@ -199,17 +199,24 @@ read_table <- function(path) {
   list(labels = labels, missing = trim_spaces(labels) %in% MISSING_TOKENS, features = features)
 }
 
-# JavaScript's \s: the spaces a label may have around a number and still sort as one.
-LABEL_SPACE <- "[\\t\\n\\x{0b}\\f\\r \\x{a0}\\x{1680}\\x{2000}-\\x{200a}\\x{2028}\\x{2029}\\x{202f}\\x{205f}\\x{3000}\\x{feff}]"
-DECIMAL_LABEL <- paste0("^", LABEL_SPACE, "*[-+]?(?:[0-9]+(?:\\.[0-9]*)?|\\.[0-9]+)(?:[eE][-+]?[0-9]+)?", LABEL_SPACE, "*$")
+# JavaScript's \s, as code points: the spaces a label may have around a number and still sort as one.
+LABEL_SPACE <- c(9:13, 32, 160, 5760, 8192:8202, 8232, 8233, 8239, 8287, 12288, 65279)
+DECIMAL_LABEL <- "^[-+]?(?:[0-9]+(?:\\.[0-9]*)?|\\.[0-9]+)(?:[eE][-+]?[0-9]+)?$"
+
+strip_label_space <- function(label) {
+  codes <- utf8ToInt(enc2utf8(label))
+  inside <- which(!(codes %in% LABEL_SPACE))
+  if (length(inside) == 0) return("")
+  intToUtf8(codes[inside[1]:inside[length(inside)]])
+}
 
 sort_labels <- function(labels) {
   # By numeric value when every label reads as a decimal number, else by code point (radix order
   # compares UTF-8 bytes, which is code point order).
   labels <- enc2utf8(labels)
-  if (length(labels) > 0 && all(grepl(DECIMAL_LABEL, labels, perl = TRUE))) {
-    values <- as.numeric(gsub(paste0("^", LABEL_SPACE, "+|", LABEL_SPACE, "+$"), "", labels, perl = TRUE))
-    return(labels[order(values, labels, method = "radix")])
+  stripped <- vapply(labels, strip_label_space, "", USE.NAMES = FALSE)
+  if (length(labels) > 0 && all(grepl(DECIMAL_LABEL, stripped, perl = TRUE))) {
+    return(labels[order(as.numeric(stripped), labels, method = "radix")])
   }
   labels[order(labels, method = "radix")]
 }
@@ -236,11 +243,14 @@ ledoit_wolf <- function(z) {
   beta <- (beta_sum / n - delta_sum) / (d * n)
   delta <- (delta_sum - 2 * mu * sum(diag(covariance)) + d * mu^2) / d
   beta <- min(beta, delta)
-  shrinkage <- if (beta == 0) 0 else beta / delta
+  # A zero or negative estimate means no shrinkage (as in the fit that made this script).
+  shrinkage <- if (beta <= 0 || delta <= 0) 0 else beta / delta
   list(covariance = (1 - shrinkage) * covariance + diag(shrinkage * mu, d), shrinkage = shrinkage)
 }
 
-fit_model <- function(x, classes, k) {
+fit_model <- function(x, classes, k, intensity = NULL) {
+  # Class counts and means, the within-class scatter as solved (Ledoit-Wolf shrunk when SOLVER is
+  # shrinkage, with the given intensity if one is given), the discriminant eigenvalues and priors.
   n <- nrow(x)
   d <- ncol(x)
   counts <- tabulate(classes, nbins = k)
@@ -248,7 +258,11 @@ fit_model <- function(x, classes, k) {
   centred <- x - means[classes, , drop = FALSE]
   within <- crossprod(centred)
   shrinkage <- 0
-  if (SOLVER == "shrinkage") {
+  if (SOLVER == "shrinkage" && !is.null(intensity)) {
+    # A cross-validation fold keeps the full fit's intensity; the target mu*I is its own.
+    shrinkage <- intensity
+    within <- (1 - intensity) * within + diag(intensity * sum(diag(within)) / d, d)
+  } else if (SOLVER == "shrinkage") {
     shrunk <- ledoit_wolf(centred)
     within <- n * shrunk$covariance
     shrinkage <- shrunk$shrinkage
@@ -292,28 +306,48 @@ training_classes <- function(model, x, classes, k) {
 }
 
 leave_one_out <- function(model, x, classes, k) {
-  # Exact leave-one-out by downdating: without row t of class c, n_c - 1 rows, mean
-  # m_c' = (n_c m_c - x_t)/(n_c - 1), within S' = S - n_c/(n_c - 1) u u' with u = x_t - m_c,
-  # covariance S'/(n - 1 - K), empirical priors re-estimated from the remaining rows. Sherman-Morrison:
-  # e' S'^-1 e = e' S^-1 e + b (u' S^-1 e)^2 / (1 - b u' S^-1 u).
+  # Exact leave-one-out by downdating. Without row t of class c (a = n_c/(n_c - 1), v = x_t - m_c):
+  # n_c - 1 rows, mean m_c' = (n_c m_c - x_t)/(n_c - 1), within scatter S' = S - zeta a v v' - eps I,
+  # covariance S'/(n - 1 - K), empirical priors re-estimated from the remaining rows. Exact solver:
+  # zeta = 1, eps = 0. Shrinkage: the left-out fit keeps the full fit's intensity alpha,
+  # S' = (1 - alpha) S_raw' + alpha tr(S_raw')/r I, i.e. zeta = 1 - alpha, eps = alpha a |v|^2 / r.
+  # With S = U'U and U^-T U^-1 = Q diag(gamma) Q', coordinates y = Q' U^-T x turn S' into
+  # diag(h) - zeta a u u' (h = 1 - eps gamma, u = y - ybar_c), inverted by Sherman-Morrison. A row
+  # whose S' is not positive definite is classified by the full fit.
   n <- model$n
   counts <- model$counts
+  r <- ncol(x)
   upper <- chol(model$within)
   white_x <- whiten(upper, x)
   white_means <- whiten(upper, model$means)
-  beta <- counts[classes] / (counts[classes] - 1)
-  white_u <- white_x - white_means[classes, , drop = FALSE]
-  h <- rowSums(white_u^2)
+  alpha <- if (SOLVER == "shrinkage") model$shrinkage else 0
+  gamma <- rep(0, r)
+  if (alpha > 0) {
+    inverse <- backsolve(upper, diag(r), transpose = TRUE)
+    decomposition <- eigen(inverse %*% t(inverse), symmetric = TRUE)
+    gamma <- decomposition$values
+    white_x <- white_x %*% decomposition$vectors
+    white_means <- white_means %*% decomposition$vectors
+  }
+  a <- counts[classes] / (counts[classes] - 1)
+  eps <- alpha * a * rowSums((x - model$means[classes, , drop = FALSE])^2) / r
+  zeta_a <- (1 - alpha) * a
+  h <- 1 - outer(eps, gamma)
+  u <- white_x - white_means[classes, , drop = FALSE]
+  denominator <- 1 - zeta_a * rowSums(u^2 / h)
+  usable <- apply(h > 0, 1, all) & denominator > 64 * .Machine$double.eps * max(1, r)
   scores <- matrix(0, nrow(x), k)
   for (j in seq_len(k)) {
     e <- sweep(white_x, 2, white_means[j, ])
     own <- classes == j
-    e[own, ] <- beta[own] * white_u[own, , drop = FALSE]
-    quadratic <- rowSums(e^2) + beta * rowSums(white_u * e)^2 / (1 - beta * h)
+    e[own, ] <- a[own] * u[own, , drop = FALSE]
+    quadratic <- rowSums(e^2 / h) + zeta_a * rowSums(e * u / h)^2 / denominator
     prior <- if (PRIORS == "empirical") (counts[j] - own) / (n - 1) else rep(1 / k, nrow(x))
     scores[, j] <- -0.5 * (n - 1 - k) * quadratic + log(prior)
   }
-  max.col(scores, ties.method = "first")
+  predicted <- max.col(scores, ties.method = "first")
+  if (!all(usable)) predicted[!usable] <- predict_classes(model, x[!usable, , drop = FALSE], k)
+  predicted
 }
 
 fold_of_rows <- function(appearance, folds, seed) {
@@ -348,15 +382,17 @@ fold_of_rows <- function(appearance, folds, seed) {
   out
 }
 
-k_fold <- function(x, classes, appearance, k) {
+k_fold <- function(model, x, classes, appearance, k) {
+  # Each fold's rows classified by a fit to the other folds' rows (with the shrinkage solver, at
+  # the full fit's intensity, as leave-one-out does).
   folds <- CROSS_VALIDATION$folds
   fold <- fold_of_rows(appearance, folds, CROSS_VALIDATION$seed)
   predicted <- integer(nrow(x))
   for (f in 0:(folds - 1)) {
     test <- fold == f
     if (!any(test)) next
-    model <- fit_model(x[!test, , drop = FALSE], classes[!test], k)
-    predicted[test] <- predict_classes(model, x[test, , drop = FALSE], k)
+    training <- fit_model(x[!test, , drop = FALSE], classes[!test], k, model$shrinkage)
+    predicted[test] <- predict_classes(training, x[test, , drop = FALSE], k)
   }
   predicted
 }
@@ -389,7 +425,7 @@ figures <- function(path) {
   )
   method <- CROSS_VALIDATION$method
   if (method != "none") {
-    predicted <- if (method == "loo") leave_one_out(model, x, classes, k) else k_fold(x, classes, appearance, k)
+    predicted <- if (method == "loo") leave_one_out(model, x, classes, k) else k_fold(model, x, classes, appearance, k)
     cv <- list(method = method)
     if (method == "kfold") cv$folds <- CROSS_VALIDATION$folds
     cv$accuracy <- mean(predicted == classes)
