@@ -63,6 +63,8 @@ export interface ReportDeltas {
   findings: { added: Finding[]; resolved: Finding[] };
   /** Fit options that differ, as `name: base → head`. */
   options: { name: string; base: string; head: string }[];
+  /** The head's priors (they decide how class sizes move the boundaries). */
+  priors: 'empirical' | 'uniform';
 }
 
 function change(base: number, head: number): Change {
@@ -164,6 +166,7 @@ export function compareReports(base: FitReport, head: FitReport, columns?: { bas
       resolved: base.findings.filter((f) => !headKeys.has(findingKey(f))),
     },
     options,
+    priors: head.options.priors,
   };
 }
 

@@ -19,12 +19,14 @@ function signedCount(delta: number): string {
 }
 
 function signedPoints(delta: number | null): string {
-  if (delta === null || !Number.isFinite(delta) || delta === 0) return '';
+  // A change that rounds to 0.0 points is shown as none (it is also how rounding noise looks).
+  if (delta === null || !Number.isFinite(delta) || (Math.abs(delta) * 100).toFixed(1) === '0.0') return '';
   return `${delta > 0 ? '+' : '−'}${(Math.abs(delta) * 100).toFixed(1)} pt`;
 }
 
-function signedNumber(delta: number | null): string {
-  if (delta === null || !Number.isFinite(delta) || delta === 0) return '';
+/** A change of a statistic; one within rounding of the two values (64 ulps of the larger) is no change. */
+function signedNumber(delta: number | null, base: number, head: number): string {
+  if (delta === null || !Number.isFinite(delta) || Math.abs(delta) <= 64 * Number.EPSILON * Math.max(Math.abs(base), Math.abs(head))) return '';
   return `${delta > 0 ? '+' : '−'}${formatNumber(Math.abs(delta))}`;
 }
 
@@ -42,7 +44,7 @@ export function figureRows(base: FitReport, head: FitReport, deltas: ReportDelta
     { name: 'Features used', base: String(base.features.length), head: String(head.features.length), change: signedCount(head.features.length - base.features.length) },
     { name: 'Cross-validated accuracy', base: cvText(base), head: cvText(head), change: signedPoints(deltas.accuracy.crossValidated?.delta ?? null) },
     { name: 'Training accuracy', base: formatPercent(base.accuracy.training), head: formatPercent(head.accuracy.training), change: signedPoints(deltas.accuracy.training.delta) },
-    { name: "Wilks' lambda", base: formatNumber(base.tests.wilks.statistic), head: formatNumber(head.tests.wilks.statistic), change: signedNumber(deltas.wilks.statistic.delta) },
+    { name: "Wilks' lambda", base: formatNumber(base.tests.wilks.statistic), head: formatNumber(head.tests.wilks.statistic), change: signedNumber(deltas.wilks.statistic.delta, deltas.wilks.statistic.base, deltas.wilks.statistic.head) },
     { name: 'Wilks p', base: formatPValue(base.tests.wilks.p), head: formatPValue(head.tests.wilks.p), change: '' },
     {
       name: 'Discriminants that matter',

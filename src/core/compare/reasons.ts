@@ -141,21 +141,40 @@ function columnSentences(deltas: ReportDeltas): NotableChange[] {
   return out;
 }
 
+/** Why one class's recall may have moved: its own rows, or the balance of the others under empirical priors. */
+function recallReason(deltas: ReportDeltas, label: string): string {
+  const own = deltas.classes.kept.find((c) => c.label === label);
+  if (own && own.base > 0 && Math.abs(own.head - own.base) / own.base >= 0.05) {
+    return `: its rows went from ${formatCount(own.base)} to ${formatCount(own.head)}${deltas.priors === 'empirical' ? ', and with empirical priors a class that shrinks is predicted less often' : ''}`;
+  }
+  const others = deltas.classes.kept.filter((c) => c.label !== label && c.base > 0 && Math.abs(c.head - c.base) / c.base >= 0.05);
+  if (others.length > 0 || deltas.classes.lost.length > 0 || deltas.classes.gained.length > 0) {
+    return `: the other classes changed (${[...others.map((c) => `'${c.label}' ${formatCount(c.base)} → ${formatCount(c.head)} rows`), ...deltas.classes.lost.map((c) => `'${c.label}' lost`), ...deltas.classes.gained.map((c) => `'${c.label}' new`)].join(', ')})`;
+  }
+  const features = [
+    ...(deltas.features.added.length > 0 ? [`${quoted(deltas.features.added)} added`] : []),
+    ...(deltas.features.removed.length > 0 ? [`${quoted(deltas.features.removed)} no longer used`] : []),
+  ];
+  if (features.length > 0) return `: the features changed (${features.join('; ')})`;
+  return '';
+}
+
 function accuracySentences(deltas: ReportDeltas): NotableChange[] {
   const out: NotableChange[] = [];
   const cv = deltas.accuracy.crossValidated;
   const rows = deltas.accuracy.rows;
   if (cv && cv.base !== null && cv.head !== null && cv.delta !== null) {
     const noise = accuracyNoise(cv.base, cv.head, rows.base, rows.head);
-    const method = cv.baseMethod === cv.headMethod ? ` (${describeCvMethod(cv.headMethod ?? '')})` : '';
+    const method = cv.baseMethod === cv.headMethod ? `, ${describeCvMethod(cv.headMethod ?? '')}` : '';
+    const noiseText = `about ±${(noise * 100).toFixed(1)} points`;
     if (Math.abs(cv.delta) >= Math.max(MIN_ACCURACY_CHANGE, NOISE_MULTIPLE * noise)) {
       out.push({
         topic: 'accuracy',
         importance: 85,
-        text: `Cross-validated accuracy ${rose(cv.delta)} from ${formatPercent(cv.base)} to ${formatPercent(cv.head)}${method} (${points(cv.delta)}, beyond the sampling noise of about ±${(noise * 100).toFixed(1)}): ${accuracyReasons(deltas, cv.delta).join('; ')}.`,
+        text: `Cross-validated accuracy ${rose(cv.delta)} from ${formatPercent(cv.base)} to ${formatPercent(cv.head)} (${points(cv.delta)}${method}; sampling noise ${noiseText}): ${accuracyReasons(deltas, cv.delta).join('; ')}.`,
       });
     } else if (cv.delta !== 0) {
-      out.push({ topic: 'accuracy', importance: 20, text: `Cross-validated accuracy ${formatPercent(cv.base)} → ${formatPercent(cv.head)}${method} (${points(cv.delta)}), within the sampling noise of about ±${(noise * 100).toFixed(1)} points.` });
+      out.push({ topic: 'accuracy', importance: 20, text: `Cross-validated accuracy ${formatPercent(cv.base)} → ${formatPercent(cv.head)} (${points(cv.delta)}${method}), within the sampling noise of ${noiseText}.` });
     }
   } else if (cv) {
     out.push({
@@ -184,7 +203,7 @@ function accuracySentences(deltas: ReportDeltas): NotableChange[] {
     out.push({
       topic: 'recall',
       importance: 60,
-      text: `${recall.kind === 'cross-validated' ? 'Cross-validated recall' : 'Recall'} of '${recall.label}' ${rose(recall.delta)} from ${formatPercent(recall.base)} to ${formatPercent(recall.head)} (${points(recall.delta)}).`,
+      text: `${recall.kind === 'cross-validated' ? 'Cross-validated recall' : 'Recall'} of '${recall.label}' ${rose(recall.delta)} from ${formatPercent(recall.base)} to ${formatPercent(recall.head)} (${points(recall.delta)})${recallReason(deltas, recall.label)}.`,
     });
   }
   return out;
@@ -219,11 +238,20 @@ function discriminantSentences(deltas: ReportDeltas): NotableChange[] {
   return out;
 }
 
+/** The first sentence of a finding's message (the rest is in the findings list). */
+function firstSentence(message: string): string {
+  const end = message.search(/[.!?](\s|$)/);
+  return end < 0 ? message : message.slice(0, end + 1);
+}
+
 const FINDING_IMPORTANCE = { error: 80, warning: 45, info: 30 } as const;
 
 function findingSentences(deltas: ReportDeltas): NotableChange[] {
   const out: NotableChange[] = [];
-  for (const f of deltas.findings.added) out.push({ topic: 'finding-new', importance: FINDING_IMPORTANCE[f.severity], text: `New ${f.severity} ${f.code}: ${f.message}` });
+  for (const f of deltas.findings.added) {
+    const about = f.columns?.length ? ` about ${quoted(f.columns)}` : f.rows?.length ? ` about ${formatCount(f.rows.length)} row${f.rows.length > 1 ? 's' : ''}` : '';
+    out.push({ topic: 'finding-new', importance: FINDING_IMPORTANCE[f.severity], text: `New ${f.severity} finding ${f.code}${about}: ${firstSentence(f.message)}` });
+  }
   for (const f of deltas.findings.resolved) {
     out.push({ topic: 'finding-resolved', importance: FINDING_IMPORTANCE[f.severity] - 5, text: `Resolved ${f.severity} ${f.code}${f.columns?.length ? ` (${quoted(f.columns)})` : ''}: no longer found.` });
   }

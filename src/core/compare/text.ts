@@ -32,6 +32,12 @@ function fileText(file: FileComparison): string[] {
       ),
     );
     out.push('');
+    for (const [title, list] of [['New findings', file.deltas.findings.added], ['Resolved findings', file.deltas.findings.resolved]] as const) {
+      if (list.length === 0) continue;
+      out.push(`  ${title} (${list.length})`);
+      for (const f of list) out.push(`    ${f.severity.padEnd(7)} ${f.code}: ${printable(f.message)}`);
+      out.push('');
+    }
   } else {
     out.push(`  ${printable(verdict(file.status === 'added' ? file.headReport : file.baseReport))}`);
     out.push('');

@@ -16,7 +16,8 @@ export const CAUTIONS = [
   'When the rows describe people, follow the data-protection and ethics rules that apply where you work, and have a qualified person review any decision built on these results.',
 ];
 
-export function toMarkdown(report: FitReport): string {
+/** `cautions: false` leaves the closing cautions out (a page of several reports states them once). */
+export function toMarkdown(report: FitReport, options: { cautions?: boolean } = {}): string {
   const out: string[] = [];
   out.push(`## Separability of \`${printable(report.source.name).replace(/`/g, "'")}\``);
   out.push('');
@@ -92,6 +93,7 @@ export function toMarkdown(report: FitReport): string {
   if (report.findings.length === 0) out.push('None.');
   for (const f of report.findings) out.push(`- **${f.severity}** \`${f.code}\`: ${markdownText(f.message)}`);
   out.push('');
+  if (options.cautions === false) return out.join('\n');
   out.push('### Cautions');
   out.push('');
   for (const caution of CAUTIONS) out.push(`- ${caution}`);
