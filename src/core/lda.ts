@@ -27,7 +27,8 @@ import { DataError } from './errors';
 import { sortLabels } from './labelOrder';
 import { describeDependent, formatCombination, revealRank, screenConstants, type ColumnFacts, type RankRevealed } from './ldaColumns';
 import { solveDirections } from './ldaDirections';
-import { EPSILON, principalSubmatrix, symmetricEigenvalues } from './linalg';
+import { conditionNumber } from './conditionNumber';
+import { EPSILON, principalSubmatrix } from './linalg';
 import type { Moments } from './moments';
 import { ledoitWolf } from './shrinkage';
 import { PRIORS, SOLVERS } from './types';
@@ -184,13 +185,9 @@ function checkOptions(options: LdaOptions): void {
   }
 }
 
-/** 2-norm condition number of a correlation matrix, capped at 1/eps (never Infinity or NaN). */
-function conditionNumberOf(correlation: Float64Array, m: number): number {
-  if (m === 0) return 1;
-  const values = symmetricEigenvalues(correlation, m);
-  const largest = values[0];
-  const smallest = Math.max(values[m - 1], EPSILON * largest);
-  return largest > 0 ? largest / smallest : 1;
+/** 2-norm condition number of the kept correlation matrix, capped at 1/eps (never Infinity or NaN). */
+function conditionNumberOf(revealed: RankRevealed): number {
+  return conditionNumber(revealed.correlation, revealed.factor, revealed.order.length);
 }
 
 function names(indices: number[], features: string[]): string {
@@ -263,7 +260,7 @@ export function solvePooled(p: PooledMoments, options: LdaOptions): LdaSolution 
   const tolerance = EPSILON * Math.max(n, r);
   const exact = revealRank(rawActive, r, active, tolerance);
   const exactRank = exact.order.length;
-  const exactCondition = conditionNumberOf(exact.correlation, exactRank);
+  const exactCondition = conditionNumberOf(exact);
   const freedom = n - K;
   if (freedom < r) {
     warnings.push({
@@ -346,7 +343,7 @@ export function solvePooled(p: PooledMoments, options: LdaOptions): LdaSolution 
     });
   }
   removed.sort((a, b) => a.index - b.index);
-  const conditionNumber = solver === 'exact' ? exactCondition : conditionNumberOf(revealed.correlation, revealed.order.length);
+  const conditionNumber = solver === 'exact' ? exactCondition : conditionNumberOf(revealed);
   const directions = solveDirections(revealed, deviations, counts, n);
   const k = directions.eigenvalues.length;
   if (k === 0) {
@@ -359,14 +356,19 @@ export function solvePooled(p: PooledMoments, options: LdaOptions): LdaSolution 
   const positionInKept = new Map(kept.map((f, i) => [f, i]));
   const positionInActive = new Map(active.map((f, i) => [f, i]));
   const pivotOf = new Map(revealed.order.map((f, q) => [f, q]));
+  const activeIndex = Int32Array.from(kept, (f) => positionInActive.get(f)!);
   const withinScatter = new Float64Array(rk * rk);
   const betweenScatter = new Float64Array(rk * rk);
   for (let a = 0; a < rk; a++) {
-    for (let b = 0; b < rk; b++) {
-      withinScatter[a * rk + b] = solved[positionInActive.get(kept[a])! * r + positionInActive.get(kept[b])!];
-      let s = 0;
-      for (let i = 0; i < K; i++) s += counts[i] * deviations[i][kept[a]] * deviations[i][kept[b]];
-      betweenScatter[a * rk + b] = s;
+    const row = activeIndex[a] * r;
+    for (let b = 0; b < rk; b++) withinScatter[a * rk + b] = solved[row + activeIndex[b]];
+  }
+  for (let i = 0; i < K; i++) {
+    const dev = Float64Array.from(kept, (f) => deviations[i][f]);
+    for (let a = 0; a < rk; a++) {
+      const w = counts[i] * dev[a];
+      const row = a * rk;
+      for (let b = 0; b < rk; b++) betweenScatter[row + b] += w * dev[b];
     }
   }
   const permuteRows = (source: Float64Array): Float64Array => {

@@ -7,7 +7,7 @@
  * The symmetric eigensolver and the small SVD live in their own files and are re-exported here,
  * so callers import every kernel from `linalg`.
  */
-export { symmetricEigen, symmetricEigenvalues, type SymmetricEigen } from './symmetricEigen';
+export { symmetricEigen, symmetricEigenvalues, tridiagonalEigenvalues, type SymmetricEigen } from './symmetricEigen';
 export { thinSvd, type ThinSvd } from './singularValues';
 
 /** Unit roundoff of IEEE double, 2⁻⁵². */

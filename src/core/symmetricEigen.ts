@@ -206,6 +206,14 @@ function descendingOrder(values: Float64Array): number[] {
   return order;
 }
 
+/** All eigenvalues of a symmetric tridiagonal matrix (off[i] couples i−1 and i; off[0] unused), descending. */
+export function tridiagonalEigenvalues(diagonal: ArrayLike<number>, off: ArrayLike<number>): Float64Array {
+  const n = diagonal.length;
+  const d = Float64Array.from(diagonal);
+  implicitQl(d, Float64Array.from(off), n, null);
+  return Float64Array.from(descendingOrder(d), (i) => d[i]);
+}
+
 /** All eigenvalues of a symmetric n × n matrix, descending (reads the lower triangle). O(4n³/3). */
 export function symmetricEigenvalues(a: Float64Array, n: number): Float64Array {
   const t = tridiagonalize(a, n);

@@ -13,6 +13,7 @@ import {
   symmetricEigenvalues,
   thinSvd,
 } from '../../src/core/linalg';
+import { conditionNumber } from '../../src/core/conditionNumber';
 import { normalStream, relativeDifference } from './numericData';
 
 /** A random n × n symmetric matrix B + Bᵀ. */
@@ -194,6 +195,24 @@ describe('linalg', () => {
       const diagonal = symmetricEigen(Float64Array.of(2, 0, 0, 0, 5, 0, 0, 0, -1), 3);
       assert.deepEqual(Array.from(diagonal.values), [5, 2, -1]);
       assert.equal(Math.abs(diagonal.vectors[1 * 3 + 0]), 1);
+    });
+  });
+
+  describe('conditionNumber', () => {
+    it('equals λ_max/λ_min of ml-matrix eigenvalues, by Lanczos above 64 columns and directly below', () => {
+      for (const [n, rank, seed] of [
+        [30, 40, 1],
+        [150, 160, 2],
+        [200, 205, 3],
+      ]) {
+        const a = randomGram(n, rank, seed);
+        const factor = cholesky(a, n).factor;
+        const values = new EigenvalueDecomposition(toMatrix(a, n, n), { assumeSymmetric: true }).realEigenvalues;
+        const expected = Math.max(...values) / Math.min(...values);
+        const got = conditionNumber(a, factor, n);
+        assert.ok(Math.abs(got - expected) / expected < 1e-8, `n=${n}: ${got} vs ${expected}`);
+      }
+      assert.equal(conditionNumber(new Float64Array(0), new Float64Array(0), 0), 1);
     });
   });
 
