@@ -162,3 +162,69 @@ export function infinityFromBytes(bytes: Uint8Array, start: number, end: number)
   }
   return sign * Infinity;
 }
+
+/** Where `plainNumberAt` stopped; -1 when the bytes were not a plain number it could read. */
+export const plainNumberEnd = new Int32Array(1);
+
+/**
+ * The scanner's shortcut for the common cell: the number starting exactly at bytes[p] (no spaces,
+ * no thousands separators), read only when Clinger's fast path applies. Sets plainNumberEnd[0] to
+ * the offset after it, or to -1 when the caller must take the general route (parseNumberBytes),
+ * which decides every other case. The caller checks what follows (a delimiter or the line end).
+ */
+export function plainNumberAt(bytes: Uint8Array, p: number, decimal: number): number {
+  let c = bytes[p];
+  let negative = false;
+  if (c === MINUS) {
+    negative = true;
+    c = bytes[++p];
+  } else if (c === PLUS) c = bytes[++p];
+  let mantissa = 0;
+  let digits = 0;
+  let fractionDigits = 0;
+  while (c >= DIGIT_ZERO && c <= DIGIT_ZERO + 9) {
+    mantissa = mantissa * 10 + (c - DIGIT_ZERO);
+    digits++;
+    c = bytes[++p];
+  }
+  if (c === decimal) {
+    c = bytes[++p];
+    while (c >= DIGIT_ZERO && c <= DIGIT_ZERO + 9) {
+      mantissa = mantissa * 10 + (c - DIGIT_ZERO);
+      fractionDigits++;
+      c = bytes[++p];
+    }
+  }
+  if (digits + fractionDigits === 0) {
+    plainNumberEnd[0] = -1;
+    return NaN;
+  }
+  let exponent = 0;
+  if (c === LOWER_E || c === UPPER_E) {
+    c = bytes[++p];
+    let exponentNegative = false;
+    if (c === MINUS || c === PLUS) {
+      exponentNegative = c === MINUS;
+      c = bytes[++p];
+    }
+    let exponentDigits = 0;
+    while (c >= DIGIT_ZERO && c <= DIGIT_ZERO + 9 && exponentDigits < 4) {
+      exponent = exponent * 10 + (c - DIGIT_ZERO);
+      exponentDigits++;
+      c = bytes[++p];
+    }
+    if (exponentDigits === 0 || (c >= DIGIT_ZERO && c <= DIGIT_ZERO + 9)) {
+      plainNumberEnd[0] = -1;
+      return NaN;
+    }
+    if (exponentNegative) exponent = -exponent;
+  }
+  const scale = exponent - fractionDigits;
+  if (mantissa >= TWO_TO_53 || scale < -22 || scale > 22) {
+    plainNumberEnd[0] = -1;
+    return NaN;
+  }
+  plainNumberEnd[0] = p;
+  const magnitude = scale >= 0 ? mantissa * EXACT_POWERS_OF_TEN[scale] : mantissa / EXACT_POWERS_OF_TEN[-scale];
+  return negative ? -magnitude : magnitude;
+}

@@ -1,10 +1,16 @@
 /**
  * Parquet through hyparquet (+ hyparquet-compressors: snappy, gzip, zstd, brotli, lz4), pure
- * JavaScript, so it also runs in a browser worker. The scan reads one row group at a time and,
- * within a row group, slices of `sliceRows` rows (hyparquet's rowStart/rowEnd; with an offset
- * index only the pages of the slice are fetched, without one the column chunk is fetched per
- * slice and the pages before the slice are skipped undecoded), so memory stays bounded by a slice
- * of the needed columns plus, at worst, their compressed column chunks.
+ * JavaScript, so it also runs in a browser worker.
+ *
+ * The scan reads one row group at a time, one column at a time, and turns each column into a
+ * typed array at once (8 bytes a feature value, 4 a label id), so the decoded JavaScript values of
+ * only one column chunk are alive at any moment. Within a row group it reads slices of `sliceRows`
+ * rows when every needed column chunk has an offset index (hyparquet then decodes only the pages
+ * of the slice) or is small; otherwise a slice would decode its column from the row group's first
+ * page again (measured 4.6× slower on a DuckDB file, whose column chunks are often a single
+ * page), so the whole row group is read at once. Memory is therefore bounded by the rows read at a time
+ * × (8·features + 4) bytes plus one decoded column chunk: a file written in one huge row group
+ * without offset indexes needs memory in proportion to it (see bench/reader.ts).
  */
 import { parquetMetadataAsync, parquetRead, type AsyncBuffer, type ColumnData, type FileMetaData } from 'hyparquet';
 import { compressors } from 'hyparquet-compressors';
@@ -18,7 +24,7 @@ import { parquetColumns, type ParquetColumn } from './parquetSchema';
 import { PassProgress } from './progress';
 import { readCopy } from './readBytes';
 import { cellRulesFor } from './textOptions';
-import { DEFAULT_MISSING_TOKENS, type CellExample, type ReaderNote, type ReadOptions, type ScanRequest, type ScanSummary, type TableInspection } from './types';
+import { DEFAULT_MISSING_TOKENS, type CellExample, type ColumnSummary, type ReaderNote, type ReadOptions, type ScanRequest, type ScanSummary, type TableInspection } from './types';
 
 export interface ParquetTuning {
   /** Rows decoded at a time within a row group. */
@@ -62,55 +68,64 @@ async function openParquet(source: ByteSource): Promise<OpenedParquet> {
   return { file, metadata, columns, rows: Number(metadata.num_rows) };
 }
 
-/** Column data of rows [rowStart, rowEnd) collected from hyparquet's onChunk (chunks may cover more rows). */
-class SliceColumns {
-  private readonly chunks = new Map<string, ColumnData[]>();
-
-  add(chunk: ColumnData): void {
-    const list = this.chunks.get(chunk.columnName);
-    if (list) list.push(chunk);
-    else this.chunks.set(chunk.columnName, [chunk]);
-  }
-
-  /** The value of `column` at absolute row `row`. */
-  valueAt(column: string, row: number): unknown {
-    const list = this.chunks.get(column);
-    if (list === undefined) return undefined;
-    for (const chunk of list) if (row >= chunk.rowStart && row < chunk.rowEnd) return chunk.columnData[row - chunk.rowStart];
-    return undefined;
-  }
-
-  /** The chunk of `column` holding `row`, to index it directly in the hot loop. */
-  chunkAt(column: string, row: number): ColumnData | undefined {
-    const list = this.chunks.get(column);
-    return list?.find((chunk) => row >= chunk.rowStart && row < chunk.rowEnd);
-  }
-}
-
-async function readSlice(opened: OpenedParquet, name: string, columns: string[], rowStart: number, rowEnd: number): Promise<SliceColumns> {
-  const slice = new SliceColumns();
-  if (columns.length === 0 || rowEnd <= rowStart) return slice;
+/**
+ * The values of one column for rows [rowStart, rowEnd), as hyparquet's chunks (a chunk may also
+ * cover rows outside the range: callers index by each chunk's rowStart).
+ */
+async function readColumnRows(opened: OpenedParquet, name: string, column: string, rowStart: number, rowEnd: number): Promise<ColumnData[]> {
+  const chunks: ColumnData[] = [];
+  if (rowEnd <= rowStart) return chunks;
   try {
     await parquetRead({
       file: opened.file,
       metadata: opened.metadata,
-      columns,
+      columns: [column],
       rowStart,
       rowEnd,
       compressors,
       useOffsetIndex: true,
-      onChunk: (chunk) => slice.add(chunk),
+      onChunk: (chunk) => chunks.push(chunk),
     });
   } catch (error) {
     if (error instanceof DataError || error instanceof CancelledError) throw error;
     throw new DataError(
       'parquet-invalid',
-      `${name}: rows ${rowStart}–${rowEnd - 1} of columns ${columns.join(', ')} cannot be decoded (${(error as Error).message}).`,
-      { file: name, row: rowStart, column: columns[0] },
+      `${name}: rows ${rowStart}–${rowEnd - 1} of column ${column} cannot be decoded (${(error as Error).message}).`,
+      { file: name, row: rowStart, column },
       'The file may be truncated or damaged; write or copy it again.',
     );
   }
-  return slice;
+  return chunks;
+}
+
+/** Calls `visit(row, value)` for rows [rowStart, rowEnd) of a column's chunks, in row order. */
+function forEachRow(chunks: readonly ColumnData[], rowStart: number, rowEnd: number, visit: (row: number, value: unknown) => void): void {
+  for (const chunk of chunks) {
+    const from = Math.max(rowStart, chunk.rowStart);
+    const to = Math.min(rowEnd, chunk.rowEnd, chunk.rowStart + chunk.columnData.length);
+    for (let row = from; row < to; row++) visit(row, chunk.columnData[row - chunk.rowStart]);
+  }
+}
+
+/** A column chunk this small (uncompressed) costs little to decode again for every slice. */
+const SMALL_CHUNK_BYTES = 1024 * 1024;
+
+/**
+ * Row ranges of a row group read at a time: slices when every needed column chunk has an offset
+ * index or is small, else the whole group.
+ */
+function rowRanges(group: FileMetaData['row_groups'][number], groupStart: number, needed: ReadonlySet<string>, sliceRows: number): [number, number][] {
+  const rows = Number(group.num_rows);
+  const sliceable = group.columns.every(
+    (chunk) =>
+      !needed.has(chunk.meta_data?.path_in_schema[0] ?? '') ||
+      (chunk.offset_index_offset !== undefined && (chunk.offset_index_length ?? 0) > 0) ||
+      Number(chunk.meta_data?.total_uncompressed_size ?? Infinity) <= SMALL_CHUNK_BYTES,
+  );
+  const step = sliceable ? Math.max(1, sliceRows) : Math.max(1, rows);
+  const ranges: [number, number][] = [];
+  for (let start = groupStart; start < groupStart + rows; start += step) ranges.push([start, Math.min(start + step, groupStart + rows)]);
+  return ranges;
 }
 
 function schemaNotes(columns: ParquetColumn[]): ReaderNote[] {
@@ -130,15 +145,17 @@ export async function inspectParquet(source: ByteSource, options: ReadOptions, c
   const progress = new PassProgress(control, 'inspect', source.size);
   const opened = await openParquet(source);
   const rules = cellRulesFor(options);
-  const flat = opened.columns.filter((column) => column.kind !== 'nested');
   const sampledRows = Math.min(opened.rows, tuning.sampleRows);
-  const slice = await readSlice(opened, source.name, flat.map((column) => column.name), 0, sampledRows);
   const reader = new ParquetFeatureReader(rules);
-  const columns = opened.columns.map((column) => {
+  const columns: ColumnSummary[] = [];
+  for (const column of opened.columns) {
     const sample = new ColumnSample(column.name, column.index);
-    if (column.kind === 'nested') return sample.summary('nested');
-    for (let row = 0; row < sampledRows; row++) {
-      const value = slice.valueAt(column.name, row);
+    if (column.kind === 'nested') {
+      columns.push(sample.summary('nested'));
+      continue;
+    }
+    const chunks = await readColumnRows(opened, source.name, column.name, 0, sampledRows);
+    forEachRow(chunks, 0, sampledRows, (_row, value) => {
       if (column.kind === 'numeric') {
         const number = reader.valueOf(value);
         if (reader.lastKind === CELL_MISSING) sample.addMissing();
@@ -148,10 +165,11 @@ export async function inspectParquet(source: ByteSource, options: ReadOptions, c
         if (text === undefined) sample.addMissing();
         else sample.addText(text);
       }
-    }
+    });
     const summary = sample.summary();
-    return summary.kind === 'empty' ? summary : { ...summary, kind: column.kind };
-  });
+    columns.push(summary.kind === 'empty' ? summary : { ...summary, kind: column.kind });
+    progress.update(0);
+  }
   progress.finish();
   return {
     source: source.name,
@@ -193,52 +211,66 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
   const lostPrecision = new Array<number>(d).fill(0);
   const reader = new ParquetFeatureReader(rules);
   const progress = new PassProgress(request.control, request.pass ?? 'rows', source.size);
+  // The rows being read, column by column: one typed array per feature, one of label ids.
+  let columnValues: Float64Array[] = features.map(() => new Float64Array(0));
+  let columnLabels = new Int32Array(0);
+
+  const labelId = (value: unknown): number => {
+    const text = textOf(value, rules);
+    if (text === undefined) return -1;
+    let id = labelIds.get(text);
+    if (id === undefined) {
+      id = labelTexts.length;
+      labelIds.set(text, id);
+      labelTexts.push(text);
+    }
+    return id;
+  };
 
   let groupStart = 0;
   for (const group of opened.metadata.row_groups) {
-    const groupRows = Number(group.num_rows);
-    for (let sliceStart = groupStart; sliceStart < groupStart + groupRows; sliceStart += tuning.sliceRows) {
-      const sliceEnd = Math.min(sliceStart + tuning.sliceRows, groupStart + groupRows);
-      const slice = await readSlice(opened, name, needed, sliceStart, sliceEnd);
-      for (let batchStart = sliceStart; batchStart < sliceEnd; batchStart += batchRows) {
-        const n = Math.min(batchRows, sliceEnd - batchStart);
-        if (label) {
-          const chunk = slice.chunkAt(label.name, batchStart);
-          for (let i = 0; i < n; i++) {
-            const text = textOf(chunk?.columnData[batchStart + i - chunk.rowStart], rules);
-            let id = -1;
-            if (text !== undefined) {
-              id = labelIds.get(text) ?? -1;
-              if (id < 0) {
-                id = labelTexts.length;
-                labelIds.set(text, id);
-                labelTexts.push(text);
-              }
+    for (const [rangeStart, rangeEnd] of rowRanges(group, groupStart, new Set(needed), tuning.sliceRows)) {
+      const rows = rangeEnd - rangeStart;
+      if (columnLabels.length < rows) {
+        columnValues = features.map(() => new Float64Array(rows));
+        columnLabels = new Int32Array(rows);
+      }
+      if (!label) columnLabels.fill(-1, 0, rows);
+      for (const [k, column] of needed.entries()) {
+        const chunks = await readColumnRows(opened, name, column, rangeStart, rangeEnd);
+        // Labels are interned in row order, so ids follow the order of first appearance.
+        if (label?.name === column) forEachRow(chunks, rangeStart, rangeEnd, (row, value) => (columnLabels[row - rangeStart] = labelId(value)));
+        features.forEach((feature, slot) => {
+          if (feature.name !== column) return;
+          const target = columnValues[slot];
+          target.fill(NaN, 0, rows);
+          forEachRow(chunks, rangeStart, rangeEnd, (row, value) => {
+            if (typeof value === 'number') {
+              target[row - rangeStart] = value;
+              return;
             }
-            labels[i] = id;
-          }
-        } else labels.fill(-1, 0, n);
-        for (let slot = 0; slot < d; slot++) {
-          const chunk = slice.chunkAt(features[slot].name, batchStart);
-          const data = chunk?.columnData;
-          const offset = chunk ? batchStart - chunk.rowStart : 0;
-          for (let i = 0; i < n; i++) {
-            const value = data?.[offset + i];
-            const number = typeof value === 'number' ? value : reader.valueOf(value);
-            values[i * d + slot] = number;
-            if (typeof value === 'number') continue;
+            target[row - rangeStart] = reader.valueOf(value);
             if (reader.lostPrecision) lostPrecision[slot]++;
             if (reader.lastKind === CELL_TEXT) {
               nonNumeric[slot]++;
-              if (nonNumericExamples[slot].length < EXAMPLES) nonNumericExamples[slot].push({ row: batchStart + i, text: textOf(value, rules) ?? '' });
+              if (nonNumericExamples[slot].length < EXAMPLES) nonNumericExamples[slot].push({ row, text: textOf(value, rules) ?? '' });
             }
-          }
-        }
-        request.onBatch({ rows: n, firstRow: batchStart, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, labelTexts);
+          });
+        });
+        progress.update(Math.round((source.size * (rangeStart + (rows * (k + 1)) / needed.length)) / Math.max(1, opened.rows)));
       }
-      progress.update(Math.round((source.size * sliceEnd) / Math.max(1, opened.rows)));
+      for (let batchStart = 0; batchStart < rows; batchStart += batchRows) {
+        const n = Math.min(batchRows, rows - batchStart);
+        for (let slot = 0; slot < d; slot++) {
+          const column = columnValues[slot];
+          for (let i = 0; i < n; i++) values[i * d + slot] = column[batchStart + i];
+        }
+        labels.set(columnLabels.subarray(batchStart, batchStart + n));
+        request.onBatch({ rows: n, firstRow: rangeStart + batchStart, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, labelTexts);
+      }
+      progress.update(Math.round((source.size * rangeEnd) / Math.max(1, opened.rows)));
     }
-    groupStart += groupRows;
+    groupStart += Number(group.num_rows);
   }
   progress.finish();
 

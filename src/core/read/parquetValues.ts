@@ -10,16 +10,23 @@ import { readCopy } from './readBytes';
 const TWO_TO_53 = 2 ** 53;
 
 /**
- * hyparquet reads through `slice`; ByteSources may reuse their buffer, so each slice is a copy
- * (readCopy allocates a fresh array of exactly the slice's length).
+ * hyparquet reads through `slice`, several at once (it prefetches the byte ranges of a read in
+ * parallel). A ByteSource may reuse its buffer on the next call, so the slices are queued one
+ * after another and each is copied (readCopy allocates a fresh array of exactly its length)
+ * before the next read starts.
  */
 export function asyncBufferOf(source: ByteSource): AsyncBuffer {
+  let queue: Promise<unknown> = Promise.resolve();
   return {
     byteLength: source.size,
-    async slice(start: number, end?: number): Promise<ArrayBuffer> {
+    slice(start: number, end?: number): Promise<ArrayBuffer> {
       const stop = Math.min(end ?? source.size, source.size);
-      const bytes = await readCopy(source, start, Math.max(0, stop - start));
-      return bytes.byteLength === bytes.buffer.byteLength ? (bytes.buffer as ArrayBuffer) : (bytes.slice().buffer as ArrayBuffer);
+      const read = queue.then(async () => {
+        const bytes = await readCopy(source, start, Math.max(0, stop - start));
+        return bytes.byteLength === bytes.buffer.byteLength ? (bytes.buffer as ArrayBuffer) : (bytes.slice().buffer as ArrayBuffer);
+      });
+      queue = read.catch(() => undefined);
+      return read;
     },
   };
 }

@@ -4,7 +4,6 @@
  * cells below them).
  */
 import { CELL_MISSING, CELL_NUMBER, CELL_TEXT, CellRules } from './cellValue';
-import { parseCsvRecords } from './csvRecords';
 
 export const DELIMITERS = [',', '\t', ';', '|'] as const;
 
@@ -15,21 +14,26 @@ const SNIFF_RECORDS = 50;
  * The candidate that splits the sampled records into the same number (≥ 2) of fields most
  * consistently; ties go to the one giving more fields, then to the order `,` tab `;` `|`.
  * `,` is no candidate when numbers are written with a decimal comma. When no candidate gives two
- * fields, the fallback (`,` for csv, tab for tsv) is used.
+ * fields, `fallback` is used. Fields are counted on the bytes, outside double quotes, over the
+ * records [starts[i], ends[i]) of `bytes`; quoting is validated later by the parser.
  */
-export function sniffDelimiter(text: string, file: string, fallback: string, decimalComma: boolean, comment?: string): string {
+export function sniffDelimiter(bytes: Uint8Array, starts: readonly number[], ends: readonly number[], fallback: string, decimalComma: boolean): string {
+  const records = Math.min(starts.length, SNIFF_RECORDS);
   let best = { delimiter: fallback, share: 0, fields: 0 };
   for (const delimiter of DELIMITERS) {
     if (decimalComma && delimiter === ',') continue;
-    let records: string[][];
-    try {
-      records = parseCsvRecords(text, { delimiter, comment }, file, []).slice(0, SNIFF_RECORDS);
-    } catch {
-      continue; // this candidate makes the quoting invalid, so it is not the delimiter
-    }
-    if (records.length === 0) continue;
+    const code = delimiter.charCodeAt(0);
     const counts = new Map<number, number>();
-    for (const record of records) counts.set(record.length, (counts.get(record.length) ?? 0) + 1);
+    for (let r = 0; r < records; r++) {
+      let fields = 1;
+      let inQuotes = false;
+      for (let p = starts[r]; p < ends[r]; p++) {
+        const c = bytes[p];
+        if (c === 0x22) inQuotes = !inQuotes;
+        else if (c === code && !inQuotes) fields++;
+      }
+      counts.set(fields, (counts.get(fields) ?? 0) + 1);
+    }
     let fields = 0;
     let frequency = 0;
     for (const [length, times] of counts) {
@@ -39,7 +43,7 @@ export function sniffDelimiter(text: string, file: string, fallback: string, dec
       }
     }
     if (fields < 2) continue;
-    const share = frequency / records.length;
+    const share = frequency / records;
     if (share > best.share || (share === best.share && fields > best.fields)) best = { delimiter, share, fields };
   }
   return best.delimiter;

@@ -23,6 +23,8 @@ interface HeadRecords {
   ends: number[];
   /** 1-based line where each record starts. */
   lines: number[];
+  /** Offset where each record starts. */
+  starts: number[];
   /** Whether a quoted field of the head holds a line break. */
   quotedLineBreak: boolean;
   /** Offset where the unfinished record at the end of the head starts (= head length when none). */
@@ -33,6 +35,7 @@ interface HeadRecords {
 function headRecords(head: Uint8Array, start: number, wholeFile: boolean, comment: Uint8Array | undefined): HeadRecords {
   const ends: number[] = [];
   const lines: number[] = [];
+  const starts: number[] = [];
   let quotedLineBreak = false;
   let line = 1;
   let p = start;
@@ -50,19 +53,21 @@ function headRecords(head: Uint8Array, start: number, wholeFile: boolean, commen
       if (wholeFile) {
         ends.push(head.length);
         lines.push(line);
+        starts.push(p);
         if (end.quotedLineFeeds > 0) quotedLineBreak = true;
         p = head.length;
         break;
       }
-      return { ends, lines, quotedLineBreak, unfinishedStart: p, unfinishedInsideQuotes: end.insideQuotes };
+      return { ends, lines, starts, quotedLineBreak, unfinishedStart: p, unfinishedInsideQuotes: end.insideQuotes };
     }
     if (end.quotedLineFeeds > 0) quotedLineBreak = true;
     ends.push(end.lineFeed + 1);
     lines.push(line);
+    starts.push(p);
     line += end.quotedLineFeeds + 1;
     p = end.lineFeed + 1;
   }
-  return { ends, lines, quotedLineBreak, unfinishedStart: p, unfinishedInsideQuotes: false };
+  return { ends, lines, starts, quotedLineBreak, unfinishedStart: p, unfinishedInsideQuotes: false };
 }
 
 export async function inspectDelimitedText(
@@ -100,14 +105,20 @@ export async function inspectDelimitedText(
   const cut = wholeFile ? head.length : records.ends[records.ends.length - 1];
   const invalid = firstInvalidUtf8(head, start, cut);
   if (invalid >= 0) throw invalidUtf8Error(file, invalid, lineAt(head, invalid));
-  const decoder = new TextDecoder('utf-8');
-  const text = decoder.decode(head.subarray(start, cut));
+  // The records parsed for the summaries: up to sampleRows rows or sampleBytes bytes (the byte
+  // scan above already counted every record of the head, for the row estimate).
+  let parsedRecords = records.ends.length;
+  for (let i = 0; i < records.ends.length; i++) {
+    if (i > tuning.sampleRows || records.ends[i] - start >= tuning.sampleBytes) {
+      parsedRecords = i + 1;
+      break;
+    }
+  }
+  const parsedEnd = parsedRecords === records.ends.length ? cut : records.ends[parsedRecords - 1];
+  const text = new TextDecoder('utf-8').decode(head.subarray(start, parsedEnd));
 
   // Dialect.
-  const sniffEnd = records.ends.find((end) => end >= start + 65536) ?? cut;
-  const delimiter =
-    options.delimiter ??
-    (format === 'tsv' ? '\t' : sniffDelimiter(decoder.decode(head.subarray(start, sniffEnd)), file, ',', options.decimalComma === true, options.comment));
+  const delimiter = options.delimiter ?? (format === 'tsv' ? '\t' : sniffDelimiter(head, records.starts, records.ends, ',', options.decimalComma === true));
   const resolvedFormat: SourceFormat = delimiter === '\t' ? 'tsv' : 'csv';
   const resolved: ReadOptions = { ...options, format: resolvedFormat, delimiter };
   checkTextOptions(file, resolved);
@@ -116,7 +127,8 @@ export async function inspectDelimitedText(
   if (parsed.length === 0) throw emptyFile(file);
   const header = options.header ?? detectHeader(parsed, rules);
   const body = header ? parsed.slice(1) : parsed;
-  if (body.length === 0 && wholeFile) {
+  const headRows = records.ends.length - (header ? 1 : 0);
+  if (headRows === 0 && wholeFile) {
     throw new DataError('no-data-rows', `${file} has a header row but no data rows.`, { file, line: (records.lines[0] ?? 1) + 1 }, 'Check that the file was written completely.');
   }
   const named = headerNames(parsed[0], header);
@@ -127,9 +139,7 @@ export async function inspectDelimitedText(
 
   // Rows: exact when the head is the whole file, else estimated from the bytes per sampled row.
   const headerEnd = header ? records.ends[0] : start;
-  const estimatedRows = wholeFile
-    ? body.length
-    : Math.max(body.length, Math.round((body.length * (source.size - headerEnd)) / Math.max(1, cut - headerEnd)));
+  const estimatedRows = wholeFile ? headRows : Math.max(headRows, Math.round((headRows * (source.size - headerEnd)) / Math.max(1, cut - headerEnd)));
   progress.finish();
   return {
     source: file,

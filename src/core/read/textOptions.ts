@@ -18,8 +18,10 @@ export interface TextTuning {
   batchRows: number;
   /** Bytes of the head looked at by `inspect`. */
   headBytes: number;
-  /** Rows of the head summarised by `inspect`. */
+  /** Rows of the head summarised by `inspect`… */
   sampleRows: number;
+  /** …and at most about this many of its bytes (the whole head is still scanned for the row estimate). */
+  sampleBytes: number;
 }
 
 export const DEFAULT_TEXT_TUNING: TextTuning = {
@@ -28,6 +30,7 @@ export const DEFAULT_TEXT_TUNING: TextTuning = {
   batchRows: 4096,
   headBytes: 1024 * 1024,
   sampleRows: 10_000,
+  sampleBytes: 256 * 1024,
 };
 
 /** Characters that cannot separate thousands: digits, signs, exponent letters, quotes, line breaks. */

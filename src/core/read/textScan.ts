@@ -14,6 +14,7 @@
  */
 import { DataError } from '../errors';
 import { CELL_TEXT, type CellRules } from './cellValue';
+import { parseNumberBytes, plainNumberAt, plainNumberEnd } from './numberBytes';
 import { parseCsvRecords } from './csvRecords';
 import { LabelDictionary } from './labelDictionary';
 import { trimEnd, trimStart } from './missingTokens';
@@ -60,6 +61,8 @@ class DelimitedTextScanner {
   private readonly slots: Int32Array;
   /** 1 for the bytes that end the unquoted-field loop: delimiter, LF, CR, quote, and bytes ≥ 0x80 (UTF-8 checks). */
   private readonly stops = new Uint8Array(256);
+  /** Whether plain numbers may be read by the shortcut: no thousands separator, and no missing token that reads as a number. */
+  private readonly plainNumbers: boolean;
   private readonly dictionary = new LabelDictionary();
   private readonly decoder = new TextDecoder('utf-8');
 
@@ -126,6 +129,7 @@ class DelimitedTextScanner {
     if (plan.label >= this.columnCount) throw new RangeError(`scan plan: label column ${plan.label} is not a column of ${this.file}`);
     for (const stop of [this.delimiter, LINE_FEED, CARRIAGE_RETURN, QUOTE]) this.stops[stop] = 1;
     for (let c = 0x80; c < 0x100; c++) this.stops[c] = 1;
+    this.plainNumbers = this.rules.syntax.thousandsSeparator < 0 && !this.rules.missing.tokens.some((token) => this.readsAsNumber(token));
 
     const batchRows = Math.max(1, tuning.batchRows);
     this.values = new Float64Array(batchRows * this.featureCount);
@@ -205,6 +209,14 @@ class DelimitedTextScanner {
     return false;
   }
 
+  /** Whether a missing token, trimmed as cells are, follows the number grammar (then it must win over the number shortcut). */
+  private readsAsNumber(token: string): boolean {
+    const bytes = new TextEncoder().encode(token);
+    const start = trimStart(bytes, 0, bytes.length);
+    const end = trimEnd(bytes, start, bytes.length);
+    return !Number.isNaN(parseNumberBytes(bytes, start, end, this.rules.syntax));
+  }
+
   /** The fast path over one row starting at `start`: next row's start, NEED_MORE or ODD_ROW. */
   private fastRow(start: number): number {
     const buffer = this.buffer;
@@ -219,9 +231,12 @@ class DelimitedTextScanner {
     this.rowLabel = -1;
     let p = start;
     let field = 0;
+    const plainNumbers = this.plainNumbers;
+    const decimal = this.rules.syntax.decimalSeparator;
     for (;;) {
       let fieldStart = p;
       let fieldEnd: number;
+      let numberRead = false;
       let c = buffer[p];
       if (c === QUOTE) {
         // A simple quoted field: no quote and no line break inside, a delimiter or line end after.
@@ -242,21 +257,38 @@ class DelimitedTextScanner {
         c = buffer[p];
         if (c !== delimiter && c !== LINE_FEED && c !== CARRIAGE_RETURN) return ODD_ROW;
       } else {
-        while (stops[c] === 0) c = buffer[++p];
-        while (c >= 0x80) {
-          const length = this.checkUtf8(p, start);
-          if (length < 0) return NEED_MORE;
-          p += length;
-          c = buffer[p];
-          while (stops[c] === 0) c = buffer[++p];
+        // The common feature cell, a plain number right before the delimiter or line end, is read
+        // in the same pass that finds its end; anything else takes the general route below.
+        if (plainNumbers && field < columnCount && slots[field] >= 0) {
+          const value = plainNumberAt(buffer, p, decimal);
+          const end = plainNumberEnd[0];
+          if (end >= 0) {
+            const after = buffer[end];
+            if (after === delimiter || after === LINE_FEED || (after === CARRIAGE_RETURN && buffer[end + 1] === LINE_FEED)) {
+              values[base + slots[field]] = value;
+              numberRead = true;
+              p = end;
+              c = after;
+            }
+          }
         }
-        if (c === QUOTE) return ODD_ROW;
+        if (!numberRead) {
+          while (stops[c] === 0) c = buffer[++p];
+          while (c >= 0x80) {
+            const length = this.checkUtf8(p, start);
+            if (length < 0) return NEED_MORE;
+            p += length;
+            c = buffer[p];
+            while (stops[c] === 0) c = buffer[++p];
+          }
+          if (c === QUOTE) return ODD_ROW;
+        }
         fieldEnd = p;
       }
       if (c === CARRIAGE_RETURN && buffer[p + 1] !== LINE_FEED) return ODD_ROW;
       if (field < columnCount) {
         const slot = slots[field];
-        if (slot >= 0) {
+        if (slot >= 0 && !numberRead) {
           values[base + slot] = rules.numberAt(buffer, fieldStart, fieldEnd);
           if (rules.lastKind === CELL_TEXT) this.holdText(slot, fieldStart, fieldEnd);
         }

@@ -142,7 +142,10 @@ async function scanGenerated(file: GeneratedFile) {
   return collector.finish(summary);
 }
 
-describe('delimited text: fast path against a pure csv-parse path', () => {
+describe('delimited text: fast path against a pure csv-parse path', function () {
+  // Real I/O and long generated inputs on a shared 2-core machine: mocha's 2 s default is too tight.
+  this.timeout(120_000);
+
   const FILES = 3000;
 
   it(`reads ${FILES} generated files exactly as csv-parse does`, async function () {

@@ -17,7 +17,10 @@ const fingerprint = (path: string): { sha256: string; mtimeMs: number; size: num
   size: statSync(path).size,
 });
 
-describe('openFileSource', () => {
+describe('openFileSource', function () {
+  // Real I/O and long generated inputs on a shared 2-core machine: mocha's 2 s default is too tight.
+  this.timeout(120_000);
+
   let folder: string;
   before(() => {
     folder = mkdtempSync(join(tmpdir(), 'scatterwise-read-'));

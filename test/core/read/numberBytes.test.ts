@@ -20,7 +20,10 @@ function randomGenerator(seed: number): () => number {
   };
 }
 
-describe('numberBytes: numbers from bytes', () => {
+describe('numberBytes: numbers from bytes', function () {
+  // Real I/O and long generated inputs on a shared 2-core machine: mocha's 2 s default is too tight.
+  this.timeout(120_000);
+
   it('is bit-identical to Number() on 300 000 generated decimal strings', function () {
     this.timeout(30_000);
     const random = randomGenerator(12345);

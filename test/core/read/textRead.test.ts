@@ -33,7 +33,10 @@ async function collect(source: ByteSource, inspection: TableInspection, plan: Sc
   return { table: collector.finish(summary), summary };
 }
 
-describe('delimited text: reading', () => {
+describe('delimited text: reading', function () {
+  // Real I/O and long generated inputs on a shared 2-core machine: mocha's 2 s default is too tight.
+  this.timeout(120_000);
+
   describe('dialect', () => {
     for (const [delimiter, name] of [[',', 'comma'], ['\t', 'tab'], [';', 'semicolon'], ['|', 'pipe']] as const) {
       it(`sniffs the ${name} delimiter and the header`, async () => {
