@@ -71,9 +71,9 @@ export function fitFromMoments(moments: Moments, name: string, partial: Partial<
 }
 
 /**
- * The same report in the shape the text and Markdown renderings take today: training accuracy NaN
- * (printed as NaN), an empty confusion matrix and the source format `moments`, with
- * `rows-not-available` among the findings to say why.
+ * The same report in the FitReport shape the shared formatting helpers take (format/text.ts,
+ * format/verdict.ts): training accuracy NaN, an empty confusion matrix, source format `moments`.
+ * Only for the parts those helpers read that moments determine (momentsFitText.ts).
  */
 export function asRenderableReport(report: MomentsFitReport): FitReport {
   return {

@@ -8,7 +8,8 @@ import { readFileSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { DataError } from '../../core/errors';
 import { momentsToJSON } from '../../core/moments';
-import { asRenderableReport, fitFromMoments } from '../../core/momentsFit';
+import { fitFromMoments } from '../../core/momentsFit';
+import { momentsFitMarkdown, momentsFitText } from '../../core/momentsFitText';
 import { readMomentsInputs, type MomentsInput } from '../../core/momentsIO';
 import { resolveOptions } from '../../core/pipeline/options';
 import { tableMoments } from '../../core/tableMoments';
@@ -18,7 +19,7 @@ import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
 import { checkOutputs, openInput, OutputFile } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
-import { renderReport, type ReportFormat } from './fit';
+import type { ReportFormat } from './fit';
 
 /** The fit options that shape moments: roles, missing values, reading. */
 const MOMENT_OPTION_NAMES = new Set(['label', 'features', 'exclude', 'missing', 'delimiter', 'no-header', 'skip-ragged-rows']);
@@ -76,7 +77,7 @@ export async function runFitFromMoments(args: ParsedArgs, io: CommandIO, format:
   const { moments, label } = readMomentsInputs(inputs);
   const bytes = inputs.reduce((sum, i) => sum + Buffer.byteLength(i.text), 0);
   const report = fitFromMoments(moments, args.positionals.join(' + '), fitOptionsFromArgs(args, 'fit'), bytes, label);
-  const text = format === 'json' ? `${JSON.stringify(report, null, 2)}\n` : renderReport(asRenderableReport(report), format);
+  const text = format === 'json' ? `${JSON.stringify(report, null, 2)}\n` : format === 'markdown' ? momentsFitMarkdown(report) : momentsFitText(report);
   writeOutput(io, outPath, text);
   return EXIT_OK;
 }
