@@ -12,7 +12,6 @@
  * The last byte after the buffered data is always a line feed (a sentinel), so the byte loops
  * test byte values only; reaching the sentinel means "the row continues in the next chunk".
  */
-import { DataError } from '../errors';
 import { CELL_TEXT, type CellRules } from './cellValue';
 import { parseNumberBytes, plainNumberAt, plainNumberEnd } from './numberBytes';
 import { parseCsvRecords } from './csvRecords';
@@ -23,7 +22,8 @@ import { findRecordEnd } from './recordBoundary';
 import { firstInvalidUtf8, hasUtf8Bom, invalidUtf8Error, utf8SequenceLength, UTF8_BOM_LENGTH } from './textEncoding';
 import { isBlankLine, isCommentLine, rowTooLongError } from './textLines';
 import { cellRulesFor, DEFAULT_TEXT_TUNING, type TextTuning } from './textOptions';
-import type { CellExample, ScanRequest, ScanSummary } from './types';
+import { EXAMPLE_CHARACTERS, ScanTally } from './scanTally';
+import type { ScanRequest, ScanSummary } from './types';
 import { rowsBefore } from './textRange';
 
 const LINE_FEED = 0x0a;
@@ -33,11 +33,6 @@ const QUOTE = 0x22;
 /** parseRow results besides "next row starts here". */
 const NEED_MORE = -1;
 const ODD_ROW = -2;
-
-/** Non-numeric cells and ragged rows quoted in the summary. */
-const EXAMPLES = 5;
-/** Characters of a row or cell quoted in an example. */
-const EXAMPLE_CHARACTERS = 200;
 
 /** Label of the current row: pending new label (intern at commit). */
 const LABEL_NEW = -2;
@@ -95,13 +90,7 @@ class DelimitedTextScanner {
   private readonly pendingText: Int32Array;
   private pendingTextCount = 0;
 
-  // Summary.
-  private rowsSeen = 0;
-  private readonly nonNumeric: number[];
-  private readonly nonNumericExamples: CellExample[][];
-  private raggedRows = 0;
-  private readonly raggedExamples: CellExample[] = [];
-  private readonly raggedFieldCounts: number[] = [];
+  private readonly tally: ScanTally;
 
   private readonly progress: PassProgress;
 
@@ -136,8 +125,7 @@ class DelimitedTextScanner {
     this.labels = new Int32Array(batchRows);
     this.lines = new Int32Array(batchRows);
     this.pendingText = new Int32Array(3 * Math.max(1, this.featureCount));
-    this.nonNumeric = new Array<number>(this.featureCount).fill(0);
-    this.nonNumericExamples = plan.features.map(() => []);
+    this.tally = new ScanTally(this.file, this.columnNames, this.featureCount);
 
     const range = request.range;
     this.readOffset = range ? Math.max(0, range.start) : 0;
@@ -169,7 +157,7 @@ class DelimitedTextScanner {
     }
     this.flush();
     this.progress.finish();
-    if (this.raggedExamples.length > 0 && !this.request.inspection.options.skipRaggedRows) throw this.raggedError();
+    if (this.tally.raggedRows > 0 && !this.request.inspection.options.skipRaggedRows) throw this.tally.raggedError();
     return this.summary();
   }
 
@@ -347,7 +335,7 @@ class DelimitedTextScanner {
   /** Ends a row of `fields` fields spanning `lineCount` lines; the buffer bytes [start, end) are its text. */
   private commitRow(fields: number, start: number, end: number, lineCount: number): void {
     const row = this.row++;
-    this.rowsSeen++;
+    this.tally.rowsSeen++;
     const line = this.line;
     this.line += lineCount;
     if (fields !== this.columnCount) {
@@ -360,28 +348,19 @@ class DelimitedTextScanner {
     this.lines[n] = line;
     for (let i = 0; i < this.pendingTextCount; i++) {
       const slot = this.pendingText[3 * i];
-      const text = this.nonNumericExamples[slot].length < EXAMPLES ? this.decoder.decode(this.buffer.subarray(this.pendingText[3 * i + 1], this.pendingText[3 * i + 2])) : '';
-      this.countText(slot, row, line, text);
+      const text = this.tally.wantsExample(slot) ? this.decoder.decode(this.buffer.subarray(this.pendingText[3 * i + 1], this.pendingText[3 * i + 2])) : '';
+      this.tally.nonNumericCell(slot, row, line, text);
     }
     this.batchCount = n + 1;
     if (this.batchCount === this.labels.length) this.flush();
   }
 
-  private countText(slot: number, row: number, line: number, text: string): void {
-    this.nonNumeric[slot]++;
-    if (this.nonNumericExamples[slot].length < EXAMPLES) this.nonNumericExamples[slot].push({ row, line, text: text.slice(0, EXAMPLE_CHARACTERS) });
-  }
-
   private ragged(row: number, line: number, fields: number, text: string): void {
-    this.raggedRows++;
-    if (this.raggedExamples.length < EXAMPLES) {
-      this.raggedExamples.push({ row, line, text: text.slice(0, EXAMPLE_CHARACTERS) });
-      this.raggedFieldCounts.push(fields);
-    }
+    const examplesComplete = this.tally.raggedRow(row, line, fields, text);
     if (this.request.inspection.options.skipRaggedRows) {
       // Keep batches contiguous in row numbers: a skipped row ends the batch.
       this.flush();
-    } else if (this.raggedExamples.length >= EXAMPLES) throw this.raggedError();
+    } else if (examplesComplete) throw this.tally.raggedError();
   }
 
   /** A row left to csv-parse: quoted line breaks, doubled quotes, stray quotes, lone CR. */
@@ -426,7 +405,7 @@ class DelimitedTextScanner {
     const row = this.row;
     const line = this.line;
     this.commitRow(record.length, start, end, 0);
-    for (const [slot, text] of texts) this.countText(slot, row, line, text);
+    for (const [slot, text] of texts) this.tally.nonNumericCell(slot, row, line, text);
   }
 
   private labelOf(text: string): number {
@@ -500,34 +479,8 @@ class DelimitedTextScanner {
     await this.fill();
   }
 
-  private raggedError(): DataError {
-    const expected = this.columnCount;
-    const list = this.raggedExamples.map((example, i) => `line ${example.line} (${this.raggedFieldCounts[i]} fields)`).join(', ');
-    const first = this.raggedExamples[0];
-    const more = this.raggedRows >= EXAMPLES ? ', perhaps more' : '';
-    return new DataError(
-      'ragged-row',
-      `${this.file}: rows with a different number of fields than the ${expected} columns of the header: ${list}${more}.`,
-      { file: this.file, line: first.line, row: first.row, column: this.columnNames[Math.min(this.raggedFieldCounts[0], expected - 1)] },
-      'Fix those rows, or skip them with the option to skip ragged rows (they are counted in the report).',
-    );
-  }
-
   private summary(): ScanSummary {
-    return {
-      rows: this.rowsSeen,
-      labels: this.dictionary.labels.slice(),
-      nonNumeric: this.nonNumeric,
-      nonNumericExamples: this.nonNumericExamples,
-      raggedRows: this.raggedRows,
-      raggedExamples: this.raggedExamples,
-      notes: [
-        ...(this.request.inspection.notes ?? []),
-        ...(this.raggedRows > 0
-          ? [{ code: 'ragged-rows-skipped', severity: 'warning' as const, message: `${this.raggedRows} rows with a field count other than ${this.columnCount} were skipped (first at line ${this.raggedExamples[0].line}).` }]
-          : []),
-      ],
-    };
+    return this.tally.summary(this.dictionary.labels, this.request.inspection.notes ?? []);
   }
 }
 
