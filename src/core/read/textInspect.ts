@@ -91,7 +91,10 @@ export async function inspectDelimitedText(
   for (let first = true; ; first = false) {
     head = await readCopy(source, 0, headLength);
     progress.update(head.length);
-    if (first) checkTextHead(file, head);
+    if (first) {
+      checkTextHead(file, head);
+      checkLineEnds(file, head);
+    }
     start = hasUtf8Bom(head) ? UTF8_BOM_LENGTH : 0;
     const wholeFile = head.length >= source.size;
     records = headRecords(head, start, wholeFile, comment);
@@ -184,6 +187,19 @@ function summarizeColumn(name: string, index: number, rows: readonly string[][],
     else sample.addText(row[index].replace(/^ +| +$/g, ''));
   }
   return sample.summary();
+}
+
+/** Lines ended by a carriage return alone (classic Mac OS) would make the whole file one row. */
+function checkLineEnds(file: string, head: Uint8Array): void {
+  const carriageReturn = head.indexOf(0x0d);
+  if (carriageReturn < 0 || head.indexOf(0x0a) >= 0) return;
+  if (carriageReturn === head.length - 1) return; // one line ending in CR: nothing is lost
+  throw new DataError(
+    'carriage-return-lines',
+    `${file}: lines end with a carriage return alone (classic Mac OS line ends), which is not supported.`,
+    { file, line: 1, byteOffset: carriageReturn },
+    'Convert the line ends to LF or CR LF (most editors can do this when saving).',
+  );
 }
 
 function emptyFile(file: string): DataError {

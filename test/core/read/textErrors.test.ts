@@ -98,6 +98,10 @@ describe('delimited text: bad input', function () {
     await rejectsWith(readAll(textSource('stray.csv', 'a,b,label\n1,2,x\n1,2 5" pipe,y\n')), 'misplaced-quote', ['stray.csv', 'line 3', 'column b']);
   });
 
+  it('lines ended by a carriage return alone', async () => {
+    await rejectsWith(inspectTable(textSource('mac.csv', 'x,fault\r1,ok\r2,worn\r')), 'carriage-return-lines', ['mac.csv', 'carriage return']);
+  });
+
   it('a binary file opened by mistake', async () => {
     const bytes = new Uint8Array(4096);
     for (let i = 0; i < bytes.length; i++) bytes[i] = (i * 7919) % 256;
