@@ -2,6 +2,7 @@
  * A comparison as the reports and the panel show it: for each data file, the two fits (or only one
  * when the file was added or removed), the deltas, the notable changes in words and the gates.
  */
+import { formatCount } from '../format/numbers';
 import type { FitReport } from '../types';
 import { compareReports, type ReportDeltas } from './deltas';
 import type { GateRules } from './gateRules';
@@ -65,7 +66,7 @@ export function addedFile(head: SideSummary, headReport: FitReport, rules: (Gate
     status: 'added',
     head,
     headReport,
-    changes: [{ topic: 'file-added', importance: 100, text: `${head.name} is a new data file: ${headReport.classes.length} classes, ${headReport.rows.used} rows used.` }],
+    changes: [{ topic: 'file-added', importance: 100, text: `${head.name} is a new data file: ${headReport.classes.length} classes, ${formatCount(headReport.rows.used)} rows used.` }],
     gates: checkNewFileGates(headReport, ...rules),
   };
 }
@@ -76,7 +77,7 @@ export function removedFile(base: SideSummary, baseReport: FitReport, rules: (Ga
     status: 'removed',
     base,
     baseReport,
-    changes: [{ topic: 'file-removed', importance: 100, text: `${base.name} was removed (it had ${baseReport.classes.length} classes, ${baseReport.rows.used} rows used).` }],
+    changes: [{ topic: 'file-removed', importance: 100, text: `${base.name} was removed (it had ${baseReport.classes.length} classes, ${formatCount(baseReport.rows.used)} rows used).` }],
     gates: checkRemovedFileGates(baseReport, ...rules),
   };
 }
