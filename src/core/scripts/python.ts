@@ -92,8 +92,9 @@ def cell_numbers(cells):
         plain = plain.str.replace(THOUSANDS_SEPARATOR, '', regex=False)
     if DECIMAL_COMMA:
         plain = plain.str.replace(',', '.', regex=False)
-    # float() of a decimal string is correctly rounded, as JavaScript's Number() is.
-    values[numeric] = np.array([float(v) for v in plain], dtype=float)
+    # Python's float() of a decimal string (what astype(float) applies) is correctly rounded, as
+    # JavaScript's Number() is.
+    values[numeric] = plain.astype(float).to_numpy()
     infinite = text.str.fullmatch(INFINITY).to_numpy(dtype=bool) & ~missing
     values[infinite] = np.where(text[infinite].str.startswith('-'), -np.inf, np.inf)
     return values
