@@ -22,7 +22,9 @@ export async function openInput(cwd: string, path: string): Promise<ByteSource &
   }
   if (!isFile) throw new DataError('unreadable-file', `${path}: not a regular file.`, { file: path }, 'Give the path of a CSV, TSV or Parquet file.');
   try {
-    return await openFileSource(full);
+    const file = await openFileSource(full);
+    // Named as the user wrote it, so messages and reports carry no absolute path of this machine.
+    return { name: path, size: file.size, read: (offset, length) => file.read(offset, length), close: () => file.close() };
   } catch (error) {
     if (error instanceof DataError) throw error;
     const code = (error as NodeJS.ErrnoException).code;

@@ -117,6 +117,16 @@ function checkRows(source: string, roles: ColumnRoles, pass: FirstPassResult): v
   }
 }
 
+/**
+ * The provisional answer reads the first rows, as many as fit in `provisionalBytes` by the
+ * inspection's row estimate: ⌈estimatedRows · provisionalBytes / size⌉. A row count rather than a
+ * byte offset, so both passes cut at the same row whatever the reader's chunking.
+ */
+function provisionalRowLimit(inspection: TableInspection, size: number, provisionalBytes: number | undefined): number | null {
+  if (provisionalBytes === undefined || !(provisionalBytes < size) || size === 0) return null;
+  return Math.max(1, Math.ceil((inspection.estimatedRows * Math.max(0, provisionalBytes)) / size));
+}
+
 export async function analyze(source: ByteSource, partial?: Partial<FitOptions>, control?: AnalysisControl): Promise<AnalysisResult> {
   const started = now();
   const options = resolveOptions(partial);
@@ -135,7 +145,7 @@ export async function analyze(source: ByteSource, partial?: Partial<FitOptions>,
   const inspected = now();
 
   // Pass 1, and for drop-columns a second run without the columns that had missing cells.
-  const budget = control?.provisionalBytes !== undefined && control.provisionalBytes < source.size ? control.provisionalBytes : undefined;
+  const rowLimit = provisionalRowLimit(inspection, source.size, control?.provisionalBytes);
   let features = roles.features;
   const foldsFor = (d: number): { count: number; seed: number } | undefined => {
     const count = foldsToCollect(options.cv, inspection.estimatedRows, d);
@@ -147,7 +157,7 @@ export async function analyze(source: ByteSource, partial?: Partial<FitOptions>,
       inspection,
       { label: roles.label.index, features: columns.map((c) => c.index), featureNames: columns.map((c) => c.name), ...(folds ? { folds } : {}), moments },
       progress,
-      budget,
+      rowLimit,
     );
   let pass1 = await runPass1(features);
   const firstCounts = featureCounts(pass1, features.map((c) => c.name));
@@ -181,7 +191,7 @@ export async function analyze(source: ByteSource, partial?: Partial<FitOptions>,
   if (cv.method === 'none' && cv.reason) findings.push(cvSkippedFinding(cv.reason));
   let crossValidator: CrossValidator = { kind: 'none' };
   if (cv.method === 'loo') {
-    crossValidator = { kind: 'loo', predict: createLeaveOneOut(solution, moments).predict };
+    crossValidator = { kind: 'loo', model: createLeaveOneOut(solution, moments) };
   } else if (cv.method !== 'none') {
     let folds = pass1.folds;
     if (!folds || folds.kFolds !== cv.folds) {

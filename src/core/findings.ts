@@ -273,12 +273,14 @@ export function classFindings(classes: readonly { label: string; count: number }
 
 /** η² from which one feature alone is taken to separate the classes almost perfectly. */
 export const LEAKAGE_ETA_SQUARED = 0.99;
+/** Classes with fewer rows than this share of all rows (or fewer than 2) are left out of the range check. */
+export const LEAKAGE_SMALL_CLASS_SHARE = 0.01;
 
 export interface LeakageFacts {
   feature: string;
   etaSquared: number;
-  /** Per class [min, max] of the feature over the rows used. */
-  ranges: readonly { label: string; min: number; max: number }[];
+  /** Per class: rows used and [min, max] of the feature over them. */
+  ranges: readonly { label: string; count: number; min: number; max: number }[];
 }
 
 /** True when no two classes' [min, max] ranges overlap (sorted by min, each max < the next min). */
@@ -289,18 +291,29 @@ export function rangesDisjoint(ranges: readonly { min: number; max: number }[]):
   return true;
 }
 
-/** `possible-leakage`: a single feature that alone separates the classes (almost) perfectly. */
+/**
+ * `possible-leakage`: a single feature that alone separates the classes almost perfectly. Rule:
+ * η² ≥ 0.99, or the per-class [min, max] ranges do not overlap. For the range check, classes with
+ * fewer than max(2, 1% of the rows) rows are left out (when at least two classes remain): a
+ * handful of rows must not hide a feature that sorts all the others into their classes.
+ */
 export function leakageFindings(facts: readonly LeakageFacts[]): Finding[] {
   const found: Finding[] = [];
   for (const f of facts) {
-    const disjoint = rangesDisjoint(f.ranges);
+    const n = f.ranges.reduce((a, r) => a + r.count, 0);
+    const floor = Math.max(2, Math.ceil(LEAKAGE_SMALL_CLASS_SHARE * n));
+    const large = f.ranges.filter((r) => r.count >= floor);
+    const checked = large.length >= 2 ? large : f.ranges;
+    const left = f.ranges.filter((r) => !checked.includes(r));
+    const disjoint = rangesDisjoint(checked);
     if (!disjoint && !(f.etaSquared >= LEAKAGE_ETA_SQUARED)) continue;
+    const leftOut = left.length > 0 ? `; ${listNames(left.map((r) => r.label))} with fewer than ${floor} rows left out` : '';
     const why = disjoint
-      ? `the classes' value ranges do not overlap (${[...f.ranges]
+      ? `the classes' value ranges do not overlap (${[...checked]
           .sort((a, b) => a.min - b.min)
           .slice(0, 6)
           .map((r) => `'${r.label}' ${formatNumber(r.min)}…${formatNumber(r.max)}`)
-          .join(', ')})`
+          .join(', ')}${leftOut})`
       : `it explains ${formatPercent(f.etaSquared, 2)} of its variance by class (η² ≥ ${LEAKAGE_ETA_SQUARED})`;
     found.push(
       finding(

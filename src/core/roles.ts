@@ -5,7 +5,8 @@
  *  1. the column named by `options.label` (exact name);
  *  2. else the first column whose name is, ignoring case, one of LABEL_NAMES (in that list's order);
  *  3. else the single text column of low cardinality: distinct sampled values ≤ max(20, 5% of the
- *     sampled rows);
+ *     sampled rows); a text column whose sampled values are all different (an identifier such as a
+ *     serial number) is passed over when another candidate has repeated values;
  *  4. else a DataError listing the candidates (or saying there are none) and suggesting `--label`.
  * Features: `options.features` in the order given, else every numeric column but the label, in file
  * order; `options.exclude` removes columns from either. Text columns that end up unused are listed
@@ -71,7 +72,9 @@ function chooseLabel(inspection: TableInspection, options: RoleOptions, excluded
   }
   const limit = labelCardinalityLimit(inspection.sampledRows);
   const text = candidates.filter((c) => c.kind === 'text' && c.distinct <= limit);
-  if (text.length === 1) return { label: text[0]!, labelChosenBy: 'only-text-column' };
+  const repeating = text.filter((c) => c.distinct < inspection.sampledRows - c.missing);
+  if (repeating.length === 1) return { label: repeating[0]!, labelChosenBy: 'only-text-column' };
+  if (repeating.length === 0 && text.length === 1) return { label: text[0]!, labelChosenBy: 'only-text-column' };
   const why =
     text.length === 0
       ? `no column is named ${LABEL_NAMES.map((n) => `'${n}'`).join('/')} and no text column has at most ${limit} distinct values`

@@ -48,9 +48,15 @@ describe('findings', () => {
   it('leakage: disjoint class ranges, or η² ≥ 0.99', () => {
     assert.equal(rangesDisjoint([{ min: 5, max: 6 }, { min: 0, max: 1 }, { min: 2, max: 4 }]), true);
     assert.equal(rangesDisjoint([{ min: 0, max: 2 }, { min: 2, max: 4 }]), false, 'touching ranges overlap');
-    const ranges = [{ label: 'a', min: 0, max: 1 }, { label: 'b', min: 0.5, max: 2 }];
+    const ranges = [{ label: 'a', count: 50, min: 0, max: 1 }, { label: 'b', count: 50, min: 0.5, max: 2 }];
     assert.equal(leakageFindings([{ feature: 'x', etaSquared: 0.5, ranges }]).length, 0);
     assert.equal(leakageFindings([{ feature: 'x', etaSquared: 0.995, ranges }])[0]!.code, 'possible-leakage');
+    // A class of 2 rows in 300 (under 1%) does not hide ranges that sort every other row.
+    const withTiny = [{ label: 'a', count: 148, min: 0, max: 1 }, { label: 'b', count: 150, min: 2, max: 3 }, { label: 'c', count: 2, min: 0.4, max: 0.6 }];
+    const [leak] = leakageFindings([{ feature: 'code', etaSquared: 0.9, ranges: withTiny }]);
+    assert.match(leak!.message, /'c' with fewer than 3 rows left out/);
+    const notTiny = withTiny.map((r) => (r.label === 'c' ? { ...r, count: 30 } : r));
+    assert.equal(leakageFindings([{ feature: 'code', etaSquared: 0.9, ranges: notTiny }]).length, 0);
   });
 
   it('near-constant: one value in 99% of rows, or spread below √ε of the mean', () => {

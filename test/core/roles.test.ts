@@ -77,6 +77,11 @@ describe('roles', () => {
     assert.deepEqual(excluded.features.map((c) => c.name), ['rms_velocity', 'temperature']);
   });
 
+  it('passes over an identifier column whose sampled values are all different', () => {
+    const roles = assignRoles(table([['serial', 'text', 12], ['x', 'numeric', 12], ['fault', 'text', 3]], 12));
+    assert.equal(roles.label.name, 'fault');
+  });
+
   it('lists the candidates when two text columns could be the label', () => {
     const error = dataError(() => assignRoles(table([['x', 'numeric', 100], ['site', 'text', 3], ['fault', 'text', 4]])));
     assert.equal(error.code, 'ambiguous-label');

@@ -4,7 +4,7 @@
  * cautions at the end.
  */
 import type { FitReport } from '../types';
-import { formatCount, formatNumber, formatPercent, formatPValue } from './numbers';
+import { formatCount, formatNumber, formatPEquals, formatPercent, formatPValue } from './numbers';
 import { markdownTable, markdownText, printable } from './table';
 import { confusionRows, discriminantRows, MISCLASSIFIED_SHOWN, multivariateRows, rowsSentence, solverSentence, TOP_FEATURES_SHOWN } from './text';
 import { describeCvMethod, verdict } from './verdict';
@@ -42,8 +42,8 @@ export function toMarkdown(report: FitReport, options: { cautions?: boolean } = 
     ['Features used', `${report.features.length}${report.removedFeatures.length ? ` (${report.removedFeatures.length} removed)` : ''}`],
     ['Training accuracy', formatPercent(report.accuracy.training)],
     ['Cross-validated accuracy', cv ? `${formatPercent(cv.value)} (${describeCvMethod(cv.method)})` : 'not run'],
-    ["Wilks' lambda", `${formatNumber(report.tests.wilks.statistic)} (F = ${formatNumber(report.tests.wilks.F)}, p = ${formatPValue(report.tests.wilks.p)})`],
-    ["Box's M", report.tests.boxM ? `${formatNumber(report.tests.boxM.M)} (p = ${formatPValue(report.tests.boxM.p)})` : 'not computed'],
+    ["Wilks' lambda", `${formatNumber(report.tests.wilks.statistic)} (F = ${formatNumber(report.tests.wilks.F)}, ${formatPEquals(report.tests.wilks.p)})`],
+    ["Box's M", report.tests.boxM ? `${formatNumber(report.tests.boxM.M)} (${formatPEquals(report.tests.boxM.p)})` : 'not computed'],
   ];
   out.push(markdownTable(['', 'value'], key, ['left', 'right']));
   out.push('');

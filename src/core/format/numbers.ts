@@ -35,6 +35,11 @@ export function formatPValue(p: number): string {
   return formatNumber(p, 3);
 }
 
+/** `p = 0.0312`, or `p < 1e-307` when it underflowed to 0. */
+export function formatPEquals(p: number): string {
+  return p === 0 ? `p ${formatPValue(p)}` : `p = ${formatPValue(p)}`;
+}
+
 /** An integer with `,` between thousands: 1234567 → `1,234,567`. */
 export function formatCount(n: number): string {
   const text = String(Math.abs(Math.trunc(n)));

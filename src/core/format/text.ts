@@ -2,7 +2,7 @@
  * The report for a terminal: the verdict first, then the figures it rests on, aligned plain text.
  */
 import type { FitReport, MultivariateTest } from '../types';
-import { formatCount, formatNumber, formatPercent, formatPValue } from './numbers';
+import { formatCount, formatNumber, formatPEquals, formatPercent, formatPValue } from './numbers';
 import { printable, textTable } from './table';
 import { describeCvMethod, verdict } from './verdict';
 
@@ -93,7 +93,7 @@ export function toText(report: FitReport): string {
   const box = report.tests.boxM;
   out.push(
     box
-      ? `  Box's M (equal class covariances): M = ${formatNumber(box.M)}, χ² = ${formatNumber(box.chi2)} (df ${formatNumber(box.df, 6)}), p = ${formatPValue(box.p)}; F = ${formatNumber(box.F)} (df ${formatNumber(box.df1, 6)}, ${formatNumber(box.df2, 6)}), p = ${formatPValue(box.pF)}`
+      ? `  Box's M (equal class covariances): M = ${formatNumber(box.M)}, χ² = ${formatNumber(box.chi2)} (df ${formatNumber(box.df, 6)}), ${formatPEquals(box.p)}; F = ${formatNumber(box.F)} (df ${formatNumber(box.df1, 6)}, ${formatNumber(box.df2, 6)}), ${formatPEquals(box.pF)}`
       : "  Box's M: not computed (see findings)",
   );
   out.push('');

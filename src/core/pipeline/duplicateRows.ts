@@ -7,7 +7,7 @@
  * default 250 000), so a reported duplicate is very nearly certain; the check never misses one.
  */
 
-/** Rows whose hashes are kept (≈ 60 bytes each in a Map): about 15 MB at most. */
+/** Rows whose hashes are kept: an open-addressing table of at most 2¹⁹ slots (6 MB) at 250 000. */
 export const DUPLICATE_CHECK_CAPACITY = 250_000;
 
 export interface DuplicateExample {
@@ -19,20 +19,60 @@ export interface DuplicateExample {
 
 const EXAMPLES_KEPT = 20;
 
+/**
+ * A set of 53-bit hashes with a value per entry: open addressing with linear probing over typed
+ * arrays, kept at most half full. (A Map with keys beyond 2³¹ boxes every key: slow, and garbage.)
+ */
+class HashSlots {
+  private keys = new Float64Array(1024);
+  private slots = new Int32Array(1024).fill(-1);
+  size = 0;
+
+  private static position(key: number, mask: number): number {
+    return (key % 4294967296 ^ Math.floor(key / 4294967296)) & mask;
+  }
+
+  /** The value stored for `key`, or -1. */
+  get(key: number): number {
+    const mask = this.keys.length - 1;
+    for (let i = HashSlots.position(key, mask); ; i = (i + 1) & mask) {
+      const slot = this.slots[i]!;
+      if (slot < 0) return -1;
+      if (this.keys[i] === key) return slot;
+    }
+  }
+
+  set(key: number, value: number): void {
+    if (2 * (this.size + 1) > this.keys.length) this.grow();
+    const mask = this.keys.length - 1;
+    let i = HashSlots.position(key, mask);
+    while (this.slots[i]! >= 0) i = (i + 1) & mask;
+    this.keys[i] = key;
+    this.slots[i] = value;
+    this.size++;
+  }
+
+  private grow(): void {
+    const keys = this.keys;
+    const slots = this.slots;
+    this.keys = new Float64Array(2 * keys.length);
+    this.slots = new Int32Array(2 * keys.length).fill(-1);
+    this.size = 0;
+    for (let i = 0; i < keys.length; i++) if (slots[i]! >= 0) this.set(keys[i]!, slots[i]!);
+  }
+}
+
 export class DuplicateRows {
-  private readonly seen = new Map<number, number>();
-  private readonly firstRows: Int32Array;
-  private readonly firstLines: Int32Array;
+  private readonly seen = new HashSlots();
+  private firstRows = new Int32Array(1024);
+  private firstLines = new Int32Array(1024);
   private readonly bits = new Float64Array(1);
   private readonly words = new Uint32Array(this.bits.buffer);
   count = 0;
   checked = 0;
   readonly examples: DuplicateExample[] = [];
 
-  constructor(private readonly capacity = DUPLICATE_CHECK_CAPACITY) {
-    this.firstRows = new Int32Array(capacity);
-    this.firstLines = new Int32Array(capacity);
-  }
+  constructor(private readonly capacity = DUPLICATE_CHECK_CAPACITY) {}
 
   /** Whether more rows are being checked. */
   get open(): boolean {
@@ -62,7 +102,7 @@ export class DuplicateRows {
     h1 ^= h1 >>> 13;
     const key = (h1 >>> 0) * 2 ** 21 + (h2 >>> 11);
     const slot = this.seen.get(key);
-    if (slot !== undefined) {
+    if (slot >= 0) {
       this.count++;
       if (this.examples.length < EXAMPLES_KEPT) {
         const example: DuplicateExample = { row, firstRow: this.firstRows[slot]! };
@@ -74,6 +114,14 @@ export class DuplicateRows {
       }
     } else {
       const next = this.seen.size;
+      if (next === this.firstRows.length) {
+        const rows = new Int32Array(2 * next);
+        rows.set(this.firstRows);
+        this.firstRows = rows;
+        const lines = new Int32Array(2 * next);
+        lines.set(this.firstLines);
+        this.firstLines = lines;
+      }
       this.seen.set(key, next);
       this.firstRows[next] = row;
       this.firstLines[next] = line ?? 0;

@@ -53,7 +53,7 @@ export interface FirstPassResult {
   negativeInfinity: Float64Array;
   /** The reader's summary; absent after an early stop (non-numeric cells then count as missing). */
   summary: ScanSummary | null;
-  /** Rows after which the pass stopped early (provisional), or null when it read everything. */
+  /** The row limit when rows were left out (provisional), or null when every row was read. */
   rowLimit: number | null;
   duplicates: DuplicateRows;
   majority: MajorityVote;
@@ -67,7 +67,8 @@ export async function firstPass(
   inspection: TableInspection,
   plan: FirstPassPlan,
   control: RunControl | undefined,
-  byteBudget?: number,
+  /** Read only the data rows before this one (the provisional answer); null = every row. */
+  rowLimit: number | null = null,
 ): Promise<FirstPassResult> {
   const d = plan.features.length;
   const accumulator = plan.moments ? new MomentsAccumulator(plan.featureNames) : null;
@@ -86,7 +87,6 @@ export async function firstPass(
   let droppedMissing = 0;
   let droppedNonFinite = 0;
   let labelMissing = 0;
-  let rowLimit: number | null = null;
 
   const blockValues = new Float64Array(BLOCK_ROWS * d);
   const blockClasses = new Int32Array(BLOCK_ROWS);
@@ -101,7 +101,7 @@ export async function firstPass(
     blockRows = 0;
   };
 
-  const pass = new PassControl('moments', control, byteBudget);
+  const pass = new PassControl('moments', control);
   const summary = await pass.run(() =>
     scanTable({
       source,
@@ -113,7 +113,10 @@ export async function firstPass(
         const { values } = batch;
         for (let i = 0; i < batch.rows; i++) {
           const row = batch.firstRow + i;
-          if (rowLimit !== null && row >= rowLimit) break;
+          if (rowLimit !== null && row >= rowLimit) {
+            pass.stop();
+            break;
+          }
           rows = row + 1;
           const label = batch.labels[i]!;
           let missing = label < 0;
@@ -149,7 +152,8 @@ export async function firstPass(
             appearanceOf[label] = order;
             appearance.push(label);
           }
-          blockValues.set(values.subarray(offset, offset + d), blockRows * d);
+          const at = blockRows * d;
+          for (let j = 0; j < d; j++) blockValues[at + j] = values[offset + j]!;
           blockClasses[blockRows] = label;
           if (assigner) blockFolds[blockRows] = assigner.foldOf(order);
           blockRows++;
@@ -157,22 +161,18 @@ export async function firstPass(
           duplicates.add(label, values, offset, d, row, batch.lines?.[i]);
           majority.vote(values, offset);
         }
-        if (rowLimit === null && pass.budgetSpent) {
-          rowLimit = rows;
-          pass.stop();
-        }
       },
     }),
   );
   flush();
-  // The reader may have reached the end before it saw the stop: then nothing was left out.
-  if (summary && rowLimit !== null && summary.rows === rowLimit) rowLimit = null;
+  // Rows were left out only when the reader had more than the limit.
+  const cut = rowLimit !== null && (pass.stoppedEarly || (summary !== undefined && summary.rows > rowLimit)) ? rowLimit : null;
   return {
     moments: accumulator ? accumulator.result() : null,
     folds,
     labels: [...labels],
     appearance,
-    rows: rowLimit === null && summary ? summary.rows : rows,
+    rows: cut === null && summary ? summary.rows : rows,
     used,
     droppedMissing,
     droppedNonFinite,
@@ -181,7 +181,7 @@ export async function firstPass(
     positiveInfinity,
     negativeInfinity,
     summary: summary ?? null,
-    rowLimit,
+    rowLimit: cut,
     duplicates,
     majority,
   };

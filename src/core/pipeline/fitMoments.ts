@@ -28,11 +28,7 @@ import type { Moments } from '../moments';
 import { overallMean, totalScatter, withinScatter } from '../moments';
 import type { PcaSolution } from '../pca';
 import { solvePca } from '../pca';
-import { univariateAnova } from '../stats/anova';
-import { bartlettSequential } from '../stats/bartlett';
-import { boxM } from '../stats/boxM';
-import { centroidMahalanobis } from '../stats/distances';
-import { hotellingLawley, multivariateTestIssue, pillai, roy, wilks } from '../stats/multivariate';
+import { bartlettSequential, boxM, centroidMahalanobis, hotellingLawley, multivariateTestIssue, pillai, roy, univariateAnova, wilks } from '../stats/index';
 import type { FitOptions, FitReport, Finding } from '../types';
 
 /** The part of a FitReport that the moments determine. */
@@ -141,13 +137,19 @@ export function fitMoments(moments: Moments, options: FitOptions, dropped: reado
         .map((feature, j) => ({
           feature,
           etaSquared: univariateByFeature[j]!.etaSquared,
-          ranges: classes.map((c) => ({ label: c.label, min: c.min[j]!, max: c.max[j]! })),
+          ranges: classes.map((c) => ({ label: c.label, count: c.count, min: c.min[j]!, max: c.max[j]! })),
         }))
         .filter((f) => !solution.removed.some((x) => x.feature === f.feature && x.reason === 'constant')),
     ),
   );
+  // The solver's warnings, less those a finding above already states: the same code on the same
+  // columns, or perfect separation by columns already reported as constant within classes.
   const ldaCodes = new Set(solution.warnings.map((w) => w.code));
-  findings.push(...passThrough(solution.warnings.filter((w) => !findings.some((f) => f.code === w.code && sameColumns(f.columns, w.columns)))));
+  const constantWithin = new Set(solution.removed.filter((f) => f.reason === 'constant-within-classes').map((f) => f.feature));
+  const stated = (w: { code: string; columns?: string[] }): boolean =>
+    findings.some((f) => f.code === w.code && sameColumns(f.columns, w.columns)) ||
+    (w.code === 'perfect-separation' && (w.columns ?? []).length > 0 && (w.columns ?? []).every((c) => constantWithin.has(c)));
+  findings.push(...passThrough(solution.warnings.filter((w) => !stated(w))));
   if (solution.solver === 'shrinkage' && !ldaCodes.has('shrinkage-used')) {
     const why =
       options.solver === 'shrinkage'

@@ -1,8 +1,8 @@
 /**
  * The control handed to the reader for one pass: progress relabelled with the pass's name, the
- * caller's cancellation, and an early stop once a byte budget is read (the editor's provisional
- * answer). An early stop aborts the reader through a signal of our own; `run` then tells a stop
- * from a cancellation, so the caller's abort still surfaces as CancelledError.
+ * caller's cancellation, and an early stop (the editor's provisional answer reads only the first
+ * rows). An early stop aborts the reader through a signal of our own; `run` then tells a stop from
+ * a cancellation, so the caller's abort still surfaces as CancelledError.
  */
 import { CancelledError } from '../errors';
 import type { Progress, RunControl } from '../source';
@@ -10,15 +10,11 @@ import type { Progress, RunControl } from '../source';
 export class PassControl {
   private readonly abort = new AbortController();
   private stopped = false;
-  /** Bytes the reader has reported read so far in this pass. */
-  bytesRead = 0;
   readonly control: RunControl;
 
   constructor(
     pass: Progress['pass'],
     private readonly outer: RunControl | undefined,
-    /** Stop once this many bytes have been read; undefined = read everything. */
-    private readonly byteBudget?: number,
   ) {
     const signal = outer?.signal;
     if (signal) {
@@ -27,16 +23,8 @@ export class PassControl {
     }
     this.control = {
       signal: this.abort.signal,
-      onProgress: (progress) => {
-        this.bytesRead = progress.bytesRead;
-        outer?.onProgress?.({ ...progress, pass });
-      },
+      onProgress: (progress) => outer?.onProgress?.({ ...progress, pass }),
     };
-  }
-
-  /** True once the byte budget is spent: the caller should stop after the current batch. */
-  get budgetSpent(): boolean {
-    return this.byteBudget !== undefined && this.bytesRead >= this.byteBudget;
   }
 
   /** Ask the reader to stop early (not a cancellation). */

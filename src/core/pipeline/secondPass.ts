@@ -31,7 +31,7 @@ export interface ScoreBatch {
 }
 
 export type CrossValidator =
-  | { kind: 'loo'; predict(x: Float64Array, trueClass: number, out: Float64Array): number }
+  | { kind: 'loo'; model: { predict(x: Float64Array, trueClass: number, out: Float64Array): number } }
   | { kind: 'kfold'; classifiers: Classifier[]; seed: number }
   | { kind: 'none' };
 
@@ -91,6 +91,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
   let hasLines = true;
 
   const posterior = new Float64Array(K);
+  const x = new Float64Array(d);
   const ld = new Float64Array(k);
   const pc = new Float64Array(2);
   let scores = new Float64Array(0);
@@ -123,7 +124,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
             continue;
           }
           const truth = classOfId[id]!;
-          const x = values.subarray(offset, offset + d);
+          for (let j = 0; j < d; j++) x[j] = values[offset + j]!; // a copy: no view allocated per row
           scoreRow(solution, x, ld);
           if (input.onScores) scores.set(ld, i * k);
           majority.count(values, offset);
@@ -133,7 +134,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
           let judged = predicted;
           let judgedPosterior = posterior[predicted]!;
           if (crossValidator.kind === 'loo') {
-            judged = crossValidator.predict(x, truth, posterior);
+            judged = crossValidator.model.predict(x, truth, posterior);
             judgedPosterior = posterior[judged]!;
           } else if (crossValidator.kind === 'kfold') {
             const fold = assigner!.foldOf(appearanceOrder.get(id)!);

@@ -1,0 +1,153 @@
+import { strict as assert } from 'node:assert';
+import { spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { existsSync, readdirSync, readFileSync, statSync, symlinkSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import type { FitReport } from '../../src/core/types';
+import { pumpTable, toCsv, writeTemporary } from './generatedTables';
+
+const root = resolve(__dirname, '../../..');
+const cli = join(root, 'dist', 'cli.js');
+
+interface Run {
+  status: number | null;
+  stdout: string;
+  stderr: string;
+}
+
+function run(...args: string[]): Run {
+  const result = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: root, timeout: 60000 });
+  return { status: result.status, stdout: result.stdout, stderr: result.stderr };
+}
+
+function sha256(path: string): string {
+  return createHash('sha256').update(readFileSync(path)).digest('hex');
+}
+
+describe('scatterwise CLI (the real dist/cli.js in a child process)', function () {
+  this.timeout(60000);
+
+  before(() => {
+    // Bundle the current sources the way esbuild.mjs does, so the test never runs a stale build.
+    const build = spawnSync(
+      process.execPath,
+      ['-e', "require('esbuild').build({entryPoints:{cli:'src/cli/main.ts'},bundle:true,platform:'node',format:'cjs',target:'node20',outdir:'dist',banner:{js:'#!/usr/bin/env node'},logLevel:'error'}).catch(()=>process.exit(1))"],
+      { cwd: root, encoding: 'utf8' },
+    );
+    assert.equal(build.status, 0, build.stderr);
+  });
+
+  it('--help, help fit and --version exit 0', () => {
+    const help = run('--help');
+    assert.equal(help.status, 0);
+    assert.match(help.stdout, /fit/);
+    const fitHelp = run('help', 'fit');
+    assert.equal(fitHelp.status, 0);
+    for (const option of ['--label', '--features', '--exclude', '--solver', '--priors', '--cv', '--seed', '--missing', '--pca', '--delimiter', '--no-header', '--format', '--out', '--scores']) {
+      assert.ok(fitHelp.stdout.includes(option), option);
+    }
+    assert.match(fitHelp.stdout, /auto\|exact\|shrinkage/);
+    const version = run('--version');
+    assert.equal(version.status, 0);
+    assert.equal(version.stdout.trim(), JSON.parse(readFileSync(join(root, 'package.json'), 'utf8')).version);
+  });
+
+  it('fit --format json writes a consistent FitReport and leaves the data file unchanged', () => {
+    const data = writeTemporary('pumps.csv', toCsv(pumpTable()));
+    const before = { hash: sha256(data), mtime: statSync(data).mtimeMs };
+    const result = run('fit', data, '--format', 'json');
+    assert.equal(result.status, 0, result.stderr);
+    const report = JSON.parse(result.stdout) as FitReport;
+    for (const key of ['version', 'source', 'options', 'label', 'rows', 'classes', 'features', 'removedFeatures', 'solver', 'shrinkage', 'conditionNumber', 'discriminant', 'tests', 'univariate', 'centroidDistances', 'accuracy', 'confusion', 'crossValidatedConfusion', 'perClass', 'misclassified', 'misclassifiedTotal', 'pca', 'findings', 'sample', 'timing', 'provisional']) {
+      assert.ok(key in report, key);
+    }
+    assert.equal(report.rows.used + report.rows.dropped, report.rows.total);
+    assert.equal(report.confusion.matrix.flat().reduce((a, b) => a + b, 0), report.rows.used);
+    assert.ok(Math.abs(report.discriminant.explainedRatio.reduce((a, b) => a + b, 0) - 1) < 1e-12);
+    assert.deepEqual({ hash: sha256(data), mtime: statSync(data).mtimeMs }, before);
+  });
+
+  it('fit --format text and markdown start with the verdict; --out writes the file', () => {
+    const data = writeTemporary('pumps.csv', toCsv(pumpTable()));
+    const text = run('fit', data);
+    assert.equal(text.status, 0, text.stderr);
+    assert.match(text.stdout.split('\n')[2]!, /discriminant.*Cross-validated accuracy/);
+    const out = join(dirname(data), 'report.md');
+    const markdown = run('fit', data, '--format', 'markdown', '--out', out);
+    assert.equal(markdown.status, 0, markdown.stderr);
+    assert.equal(markdown.stdout, '');
+    const written = readFileSync(out, 'utf8');
+    assert.match(written, /^## Separability/);
+    assert.match(written, /### Cautions/);
+    assert.deepEqual(readdirSync(dirname(data)).sort(), ['pumps.csv', 'report.md'], 'no temporary file left behind');
+  });
+
+  it('--scores writes one line per data row, empty for dropped rows', () => {
+    const table = pumpTable();
+    table.rows[4]![2] = 'NA';
+    table.rows[9]![3] = 'oops';
+    const data = writeTemporary('pumps.csv', toCsv(table));
+    const scores = join(dirname(data), 'scores.csv');
+    const result = run('fit', data, '--format', 'json', '--scores', scores);
+    assert.equal(result.status, 0, result.stderr);
+    const report = JSON.parse(result.stdout) as FitReport;
+    const lines = readFileSync(scores, 'utf8').split('\n');
+    assert.equal(lines.pop(), '', 'ends with a newline');
+    assert.equal(lines[0], 'LD1,LD2');
+    assert.equal(lines.length - 1, report.rows.total);
+    assert.equal(lines[1 + 4], ',');
+    assert.equal(lines[1 + 9], ',');
+    assert.equal(lines.filter((l) => l === ',').length, 2);
+    assert.ok(lines.slice(1).every((l) => l === ',' || l.split(',').every((v) => Number.isFinite(Number(v)))));
+  });
+
+  it('refuses an output that is the data file, also through a link', () => {
+    const data = writeTemporary('pumps.csv', toCsv(pumpTable()));
+    const before = sha256(data);
+    const link = join(dirname(data), 'alias.csv');
+    symlinkSync(data, link);
+    for (const args of [['--out', data], ['--scores', data], ['--scores', link]]) {
+      const result = run('fit', data, ...args);
+      assert.equal(result.status, 2);
+      assert.match(result.stderr, /never writes to a data file/);
+    }
+    assert.equal(sha256(data), before);
+  });
+
+  it('exits 2 with a message naming the file, line and column for bad input, never a stack trace', () => {
+    const oneClass = writeTemporary('one.csv', 'pump_id,feature_1,fault\na,1,healthy\nb,2,healthy\nc,4,healthy\n');
+    const result = run('fit', oneClass);
+    assert.equal(result.status, 2);
+    assert.match(result.stderr, /one\.csv.*single class/);
+    assert.doesNotMatch(result.stderr, /\n\s+at /, 'no stack trace');
+
+    const empty = writeTemporary('empty.csv', '');
+    const emptyRun = run('fit', empty);
+    assert.equal(emptyRun.status, 2);
+    assert.match(emptyRun.stderr, /empty\.csv/);
+
+    const unknown = run('fit', writeTemporary('pumps.csv', toCsv(pumpTable())), '--label', 'faults');
+    assert.equal(unknown.status, 2);
+    assert.match(unknown.stderr, /no column 'faults'.*'pump_id', 'feature_1'/);
+
+    const ragged = writeTemporary('ragged.csv', 'feature_1,feature_2,fault\n1,2,a\n3,4,b\n5,6\n7,8,a\n');
+    const raggedRun = run('fit', ragged);
+    assert.equal(raggedRun.status, 2);
+    assert.match(raggedRun.stderr, /ragged\.csv.*line 4/);
+
+    const missing = run('fit', join(root, 'no-such-file.csv'));
+    assert.equal(missing.status, 2);
+    assert.match(missing.stderr, /no-such-file\.csv: no such file/);
+  });
+
+  it('exits 2 on bad usage with a pointer to the help', () => {
+    for (const args of [['fit'], ['fit', 'a.csv', '--solver', 'magic'], ['fit', 'a.csv', '--cv', 'kfold:1'], ['fit', 'a.csv', '--colour'], ['frobnicate'], []]) {
+      const result = run(...args);
+      assert.equal(result.status, 2, args.join(' '));
+      assert.ok(result.stderr.length > 0);
+      assert.doesNotMatch(result.stderr, /\n\s+at /);
+    }
+    assert.match(run('fit', 'a.csv', '--solver', 'magic').stderr, /one of auto, exact, shrinkage/);
+    assert.ok(!existsSync(join(root, 'a.csv')));
+  });
+});
