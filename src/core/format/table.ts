@@ -19,14 +19,14 @@ export function printable(text: string): string {
 
 /**
  * Text safe inside a Markdown table cell or paragraph: control characters escaped, `|` and the
- * characters that start inline markup backslash-escaped; `<` only where it could open an HTML tag,
- * so `p < 0.05` stays readable.
+ * characters that start inline markup backslash-escaped, and `>`; `<` only where it could open an
+ * HTML tag, so `p < 0.05` stays readable.
  */
 export function markdownText(text: string): string {
   return printable(text)
     .replace(/([\\`*_[\]|#])/g, '\\$1')
     .replace(/<(?=[A-Za-z/!?])/g, '\\<')
-    .replace(/^>/, '\\>');
+    .replace(/>/g, '\\>');
 }
 
 /** Display width of a string: code points (good enough for the names and numbers we print). */
