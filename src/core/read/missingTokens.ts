@@ -6,20 +6,22 @@
 const encoder = new TextEncoder();
 
 export class MissingTokens {
-  private readonly byLength: (Uint8Array[] | undefined)[] = [];
+  private readonly byLength: (Uint8Array[] | undefined)[];
   readonly tokens: readonly string[];
 
   constructor(tokens: readonly string[]) {
     this.tokens = tokens;
-    for (const token of tokens) {
-      const bytes = encoder.encode(token);
-      (this.byLength[bytes.length] ??= []).push(bytes);
-    }
+    const encoded = tokens.map((token) => encoder.encode(token));
+    const longest = encoded.reduce((most, bytes) => Math.max(most, bytes.length), -1);
+    this.byLength = Array.from({ length: longest + 1 }, () => undefined);
+    for (const bytes of encoded) (this.byLength[bytes.length] ??= []).push(bytes);
   }
 
   /** Whether bytes[start, end) is one of the tokens. */
   matches(bytes: Uint8Array, start: number, end: number): boolean {
     const length = end - start;
+    // Bounds first: reading past an array's end is a slow path in V8 (it searches the prototype chain).
+    if (length >= this.byLength.length) return false;
     const candidates = this.byLength[length];
     if (candidates === undefined) return false;
     for (const token of candidates) {
