@@ -2,6 +2,7 @@ import { strict as assert } from 'node:assert';
 import { EigenvalueDecomposition, Matrix, inverse } from 'ml-matrix';
 import { analyze } from '../../src/core/analyze';
 import { CancelledError, DataError } from '../../src/core/errors';
+import { verdict } from '../../src/core/format/verdict';
 import type { FitOptions, FitReport } from '../../src/core/types';
 import { addColumn, FAULTS, normal, numericColumn, pumpTable, sourceOf, toCsv, uniform } from './generatedTables';
 import type { Table } from './generatedTables';
@@ -145,6 +146,48 @@ describe('analyze: the pipeline end to end', function () {
     );
     const severities = report.findings.map((f) => ['error', 'warning', 'info'].indexOf(f.severity));
     assert.deepEqual(severities, [...severities].sort((x, y) => x - y), 'sorted by severity');
+  });
+
+  it('finds a column constant within classes, an ill-conditioned pair, skipped ragged rows and an empty column', async () => {
+    let table = pumpTable([50, 40, 60], 3, 15);
+    const a = numericColumn(table, 'feature_1');
+    const tiny = normal(8);
+    const faultIndex = (row: string[]): number => FAULTS.indexOf(row[row.length - 1] as (typeof FAULTS)[number]);
+    table = addColumn(table, 'shift_code', (row) => String(7 * faultIndex(row)));
+    table = addColumn(table, 'feature_1_rounded', (_, i) => String(a[i]! + 1e-4 * tiny()));
+    table = addColumn(table, 'notes', () => '');
+    const lines = toCsv(table).split('\n');
+    lines.splice(5, 0, 'PU-x,1,2'); // a short row at line 6
+    const report = await fit(lines.join('\n'), { solver: 'exact', read: { skipRaggedRows: true } });
+    const found = codes(report);
+    for (const code of ['constant-within-classes', 'ill-conditioned', 'empty-column', 'ragged-rows-skipped']) assert.ok(found.includes(code), `${code} in ${found.join(', ')}`);
+    assert.deepEqual(report.findings.find((f) => f.code === 'constant-within-classes')!.columns, ['shift_code']);
+    assert.ok(!found.includes('perfect-separation'), 'the solver warning on the same column is not repeated');
+    assert.equal(report.rows.droppedRagged, 1);
+    assert.equal(report.rows.total, 151);
+    assert.equal(report.rows.used + report.rows.dropped, report.rows.total);
+  });
+
+  it('auto switches to shrinkage when there are few rows per feature, with exact tests when S_W is nonsingular', async () => {
+    const table = pumpTable([6, 6, 6], 6, 19); // n − K = 15 < 3·6 within-class degrees of freedom
+    const report = await fit(table);
+    assert.equal(report.solver, 'shrinkage');
+    assert.ok(codes(report).includes('shrinkage-used'));
+    const exact = await fit(table, { solver: 'exact' });
+    assert.deepEqual(report.tests.wilks, exact.tests.wilks, 'tests from the exact problem on the same features');
+    assert.ok(!codes(report).includes('approximate-p-values'));
+    // A duplicated column keeps S_W singular: shrinkage solves with it, the tests come from the shrunk problem.
+    const copied = addColumn(table, 'feature_1_copy', (row) => row[1]!);
+    const shrunk = await fit(copied, { solver: 'shrinkage' });
+    assert.ok(codes(shrunk).includes('approximate-p-values'), codes(shrunk).join(', '));
+    assert.ok(Number.isFinite(shrunk.tests.wilks.p));
+    // More features than within-class degrees of freedom: the tests have no degrees of freedom.
+    const wide = await fit(pumpTable([5, 5, 5], 14, 23));
+    assert.equal(wide.solver, 'shrinkage');
+    assert.equal(wide.features.length, 14);
+    assert.ok(codes(wide).includes('tests-undefined'), codes(wide).join(', '));
+    assert.ok(wide.discriminant.eigenvalues.every(Number.isFinite));
+    assert.match(verdict(wide), /cannot be tested/);
   });
 
   it('reports tiny classes, imbalance, a skipped Box M and a skipped cross-validation', async () => {

@@ -3,9 +3,10 @@
  * ASCII digits, no locale: the same report reads the same on every machine.
  */
 
-/** `x` to `digits` significant digits; exponent form outside [1e-4, 1e6); ∞ and NaN spelled out. */
+/** `x` to `digits` significant digits; exponent form outside [1e-4, 1e6); ∞ spelled out; NaN (a
+ * figure that cannot be computed, e.g. a test without degrees of freedom) shown as `—`. */
 export function formatNumber(x: number, digits = 4): string {
-  if (Number.isNaN(x)) return 'NaN';
+  if (Number.isNaN(x)) return '—';
   if (x === Infinity) return '∞';
   if (x === -Infinity) return '−∞';
   if (x === 0) return '0';
@@ -29,7 +30,7 @@ export function formatPercent(fraction: number, decimals = 1): string {
 
 /** A p-value: 3 significant digits, exponent form when small, `< 1e-307` when it underflowed to 0. */
 export function formatPValue(p: number): string {
-  if (Number.isNaN(p)) return 'NaN';
+  if (Number.isNaN(p)) return '—';
   if (p === 0) return '< 1e-307';
   if (p < 1e-4) return formatNumber(p, 2);
   return formatNumber(p, 3);
@@ -37,6 +38,7 @@ export function formatPValue(p: number): string {
 
 /** `p = 0.0312`, or `p < 1e-307` when it underflowed to 0. */
 export function formatPEquals(p: number): string {
+  if (Number.isNaN(p)) return 'p —';
   return p === 0 ? `p ${formatPValue(p)}` : `p = ${formatPValue(p)}`;
 }
 

@@ -12,7 +12,9 @@ export const TOP_FEATURES_SHOWN = 10;
 export const MISCLASSIFIED_SHOWN = 10;
 
 function testRow(name: string, test: MultivariateTest): string[] {
-  return [name, formatNumber(test.statistic), formatNumber(test.F), `${formatNumber(test.df1, 6)}, ${formatNumber(test.df2, 6)}`, formatPValue(test.p)];
+  // Without an F (no positive degrees of freedom) the degrees of freedom mean nothing either.
+  const df = Number.isNaN(test.F) ? '—' : `${formatNumber(test.df1, 6)}, ${formatNumber(test.df2, 6)}`;
+  return [name, formatNumber(test.statistic), formatNumber(test.F), df, formatPValue(test.p)];
 }
 
 /** The four multivariate tests as table rows: name, statistic, F, df, p. */

@@ -49,8 +49,10 @@ export function verdict(report: FitReport): string {
     parts.push('No discriminant direction: the class means do not differ in the features used.');
   } else {
     const significant = significantDiscriminants(report);
-    const matter =
-      significant === 0
+    const untestable = report.tests.bartlett.length === 0 || Number.isNaN(report.tests.bartlett[significant]?.p ?? 0);
+    const matter = untestable && significant === 0
+      ? `${k} discriminant${k > 1 ? 's' : ''}, whose significance cannot be tested here (too few rows for the features)`
+      : significant === 0
         ? `None of the ${k} discriminant${k > 1 ? 's' : ''} is significant (Bartlett p ≥ ${DISCRIMINANT_ALPHA})`
         : `${significant} of ${k} discriminant${k > 1 ? 's' : ''} ${significant === 1 ? 'matters' : 'matter'} (Bartlett p < ${DISCRIMINANT_ALPHA})`;
     const first = k > 1 ? `; the first carries ${formatPercent(report.discriminant.explainedRatio[0] ?? 0)} of the separation` : '';

@@ -90,7 +90,7 @@ export function fitMoments(moments: Moments, options: FitOptions, dropped: reado
   if (solution.solver === 'shrinkage') {
     const exact = solveLda(moments, { solver: 'exact', priors: options.priors });
     if (sameIndices(exact.kept, kept) && exact.eigenvalues.every(Number.isFinite)) testEigenvalues = exact.eigenvalues;
-    else findings.push(approximatePValueFinding());
+    else if (multivariateTestIssue(r, K, n) === null) findings.push(approximatePValueFinding());
   }
   const lambdas = Array.from(testEigenvalues);
   const undefinedTests = multivariateTestIssue(r, K, n);
