@@ -50,6 +50,8 @@ function available(tool: Tool): boolean {
 function requireTool(context: Mocha.Context, tool: Tool): void {
   if (available(tool)) return;
   if (process.env.CI) assert.fail(tool.missing);
+  // Mocha shows a pending test's title only: carry the reason in it.
+  if (context.test) context.test.title += ` — pending: ${tool.missing}`;
   context.skip();
 }
 
