@@ -311,3 +311,33 @@ describe('analyze: the pipeline end to end', function () {
     assert.ok(Math.abs(within / (report.rows.used - 3) - 1) < 1e-9);
   });
 });
+
+describe('analyze: the same table as CSV, TSV and Parquet', function () {
+  this.timeout(30000);
+
+  it('gives the same figures from each format of the sample pump table', async () => {
+    const { openFileSource } = await import('../../src/node/fileSource');
+    const { resolve } = await import('node:path');
+    const reports: FitReport[] = [];
+    for (const name of ['pump-faults.csv', 'pump-faults.tsv', 'pump-faults.parquet']) {
+      const source = await openFileSource(resolve(__dirname, '../../../sample-workspace/data', name));
+      try {
+        reports.push((await analyze(source, {})).report);
+      } finally {
+        await source.close();
+      }
+    }
+    const [csv, tsv, parquet] = reports as [FitReport, FitReport, FitReport];
+    assert.equal(parquet.source.format, 'parquet');
+    for (const other of [tsv, parquet]) {
+      assert.deepEqual(other.classes, csv.classes);
+      assert.deepEqual(other.features, csv.features);
+      other.discriminant.eigenvalues.forEach((lambda, j) => assert.ok(Math.abs(lambda - csv.discriminant.eigenvalues[j]!) <= 1e-12 * csv.discriminant.eigenvalues[0]!));
+      assert.deepEqual(other.confusion, csv.confusion);
+      assert.deepEqual(other.crossValidatedConfusion, csv.crossValidatedConfusion);
+      assert.deepEqual(other.misclassified.map((m) => m.row), csv.misclassified.map((m) => m.row));
+    }
+    assert.equal(parquet.misclassified[0]!.line, undefined, 'Parquet has rows, not lines');
+    assert.equal(parquet.sample.lines, undefined);
+  });
+});

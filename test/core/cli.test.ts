@@ -3,6 +3,9 @@ import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { existsSync, readdirSync, readFileSync, statSync, symlinkSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
+import { UsageError } from '../../src/cli/args';
+import { describeFailure } from '../../src/cli/main';
+import { DataError } from '../../src/core/errors';
 import type { FitReport } from '../../src/core/types';
 import { pumpTable, toCsv, writeTemporary } from './generatedTables';
 
@@ -25,7 +28,8 @@ function sha256(path: string): string {
 }
 
 describe('scatterwise CLI (the real dist/cli.js in a child process)', function () {
-  this.timeout(60000);
+  // Each case starts Node a few times; generous for a shared, busy machine.
+  this.timeout(120000);
 
   before(() => {
     // Bundle the current sources the way esbuild.mjs does, so the test never runs a stale build.
@@ -149,5 +153,15 @@ describe('scatterwise CLI (the real dist/cli.js in a child process)', function (
     }
     assert.match(run('fit', 'a.csv', '--solver', 'magic').stderr, /one of auto, exact, shrinkage/);
     assert.ok(!existsSync(join(root, 'a.csv')));
+  });
+
+  it('turns what a command throws into one message and an exit code', () => {
+    const data = describeFailure(new DataError('one-class', 'pumps.csv: a single class.', { file: 'pumps.csv' }, 'Check the label.'));
+    assert.deepEqual(data, { text: 'scatterwise: pumps.csv: a single class.\n  Check the label.\n', code: 2 });
+    assert.equal(describeFailure(new UsageError('bad', 'fit')).code, 2);
+    const bug = describeFailure(new TypeError('x is undefined\n    at somewhere'));
+    assert.equal(bug.code, 1);
+    assert.match(bug.text, /^scatterwise: unexpected error: TypeError: x is undefined\n.*please report/);
+    assert.doesNotMatch(bug.text, /at somewhere/);
   });
 });
