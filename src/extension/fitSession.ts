@@ -9,6 +9,7 @@ import type { FitOptions, FitReport } from '../core/types';
 import {
   isFromPanel,
   type ColumnChoice,
+  type ComparisonMessage,
   type EditableOptions,
   type ErrorMessage,
   type FromPanel,
@@ -19,6 +20,7 @@ import {
 import type { FitJob, FitWorkers } from './fitWorkers';
 import { baseName, exportFromPanel, revealRow, routedCommands, runRoutedCommand } from './panelActions';
 import type { PostLog } from './postLog';
+import { projectSettingsFor } from './projectConfig';
 import type { FileStamp, ResultCache } from './resultCache';
 import { readSettings } from './settings';
 import type { FitFailure } from './workerProtocol';
@@ -45,6 +47,8 @@ interface LatestState {
   final?: ResultMessage;
   error?: ErrorMessage;
   progress?: ProgressMessage;
+  /** A comparison shown over the final result (until the next fit). */
+  comparison?: ComparisonMessage;
 }
 
 type CancelReason = 'user' | 'closed' | 'superseded';
@@ -127,7 +131,7 @@ export class FitSession implements vscode.Disposable {
       case 'command':
         if (message.command === 'cancel') this.cancel('user');
         else if (message.command in routedCommands) {
-          await runRoutedCommand(message.command, this.uri, this.editableOptions(), (answer) => this.broadcast(answer));
+          await runRoutedCommand(message.command, this.uri, this.editableOptions(), (answer) => (answer.type === 'comparison' ? this.present(answer) : this.broadcast(answer)));
         }
         return;
     }
@@ -141,7 +145,8 @@ export class FitSession implements vscode.Disposable {
     const generation = ++this.generation;
     const settings = readSettings();
     for (const problem of settings.problems) this.services.output.warn(problem);
-    this.requested = { ...settings.options, ...this.overrides };
+    // The project config's options for this file sit between the settings and the panel's edits.
+    this.requested = { ...settings.options, ...projectSettingsFor(this.uri, this.services.output).options, ...this.overrides };
     this.latest = {};
     void this.start(generation, previous?.ended).catch((error: unknown) => {
       if (generation === this.generation) this.fail({ code: 'internal', message: String(error), stack: error instanceof Error ? error.stack : undefined });
@@ -249,6 +254,12 @@ export class FitSession implements vscode.Disposable {
     }
   }
 
+  /** Shows a comparison now and to panels that become ready later, until the next fit replaces it. */
+  present(message: ComparisonMessage): void {
+    this.latest.comparison = message;
+    this.broadcast(message);
+  }
+
   dispose(): void {
     this.disposed = true;
     this.cancel('closed');
@@ -352,8 +363,8 @@ export class FitSession implements vscode.Disposable {
   private greet(entry: PanelEntry): void {
     entry.ready = true;
     this.post(entry, { type: 'init', fileName: this.fileName, settings: { plotBudget: readSettings().plotBudget } });
-    const { provisional, final, error, progress } = this.latest;
-    for (const message of [final ?? provisional, error, final ? undefined : progress]) if (message) this.post(entry, message);
+    const { provisional, final, error, progress, comparison } = this.latest;
+    for (const message of [final ?? provisional, error, final ? undefined : progress, comparison]) if (message) this.post(entry, message);
   }
 
   private broadcast(message: ToPanel): void {

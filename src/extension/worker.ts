@@ -11,7 +11,7 @@ import { analyze } from '../core/analyze';
 import { DataError } from '../core/errors';
 import { inspectTable } from '../core/read/index';
 import type { TableInspection } from '../core/read/types';
-import type { Progress } from '../core/source';
+import { memorySource, type Progress } from '../core/source';
 import { openFileSource } from '../node/fileSource';
 import type { ColumnChoice } from '../shared/messages';
 import type { FitFailure, FitRequest, FromWorker } from './workerProtocol';
@@ -68,8 +68,9 @@ function toFailure(error: unknown): FitFailure {
 async function run(request: FitRequest): Promise<void> {
   let source: Awaited<ReturnType<typeof openFileSource>> | undefined;
   try {
-    source = await openFileSource(request.path);
-    const hashing = hashFile(request.path).then((sha256) => {
+    const bytes = request.bytes;
+    source = bytes ? { ...memorySource(request.path, bytes), close: async () => undefined } : await openFileSource(request.path);
+    const hashing = (bytes ? Promise.resolve(createHash('sha256').update(bytes).digest('hex')) : hashFile(request.path)).then((sha256) => {
       post({ type: 'hashed', sha256 });
       return sha256;
     });

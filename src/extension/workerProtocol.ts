@@ -7,8 +7,10 @@ import type { FitOptions, FitReport } from '../core/types';
 import type { ColumnChoice } from '../shared/messages';
 
 export interface FitRequest {
-  /** Local file path; the worker opens it read-only. */
+  /** Local file path; the worker opens it read-only. With `bytes`, only the name shown in messages. */
   path: string;
+  /** The data itself instead of a file (a version read from git for a comparison); copied to the worker. */
+  bytes?: Uint8Array;
   options: Partial<FitOptions>;
   /** Analyse this many leading bytes first and post that provisional result, when the file is larger. */
   provisionalBytes: number;

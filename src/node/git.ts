@@ -165,3 +165,27 @@ export async function changedSince(cwd: string, ref: string): Promise<{ mergeBas
   files.sort((a, b) => (a.repositoryPath < b.repositoryPath ? -1 : a.repositoryPath > b.repositoryPath ? 1 : 0));
   return { mergeBase, files };
 }
+
+export interface GitRefName {
+  /** Short name: `main`, `origin/main`, `v1.0`. */
+  name: string;
+  kind: 'branch' | 'remote branch' | 'tag';
+  commit: string;
+}
+
+/** Branches, remote branches and tags, most recently committed first. */
+export async function listRefs(cwd: string): Promise<GitRefName[]> {
+  await gitTopLevel(cwd);
+  const result = await runGit(cwd, ['for-each-ref', '--sort=-committerdate', '--format=%(refname:short)%00%(objectname)%00%(refname)', 'refs/heads', 'refs/remotes', 'refs/tags']);
+  if (result.code !== 0) throw new DataError('git-failed', `git for-each-ref failed: ${result.stderr.split('\n')[0]}`);
+  return result.stdout
+    .toString('utf8')
+    .split('\n')
+    .filter((line) => line.includes('\0'))
+    .map((line) => {
+      const [name, commit, full] = line.split('\0') as [string, string, string];
+      const kind = full.startsWith('refs/tags/') ? 'tag' : full.startsWith('refs/remotes/') ? 'remote branch' : 'branch';
+      return { name, kind, commit } as GitRefName;
+    })
+    .filter((ref) => !ref.name.endsWith('/HEAD'));
+}

@@ -56,6 +56,8 @@ export interface ComparisonMessage {
   head: FitReport;
   /** Notable changes in words, most important first. */
   changes: string[];
+  /** The gates `scatterwise compare` would check for this file (config or defaults), with their outcome. */
+  gates?: { rule: string; passed: boolean; detail: string }[];
 }
 export type ToPanel = InitMessage | ProgressMessage | ResultMessage | ErrorMessage | ComparisonMessage;
 
