@@ -59,6 +59,24 @@ for (const [tool, language] of [
       });
     }
 
+    it('a file with a byte-order mark, and one without a header row, reproduce too', async function () {
+      requireTool(this, tool);
+      const iris = readFileSync(repoPath('test', 'fixtures', 'iris', 'iris.csv'));
+      const withMark = join(folder, 'with mark.csv');
+      writeFileSync(withMark, Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), iris]));
+      const headerless = join(folder, 'headerless.csv');
+      writeFileSync(headerless, iris.toString('utf8').split('\n').slice(1).join('\n'));
+      for (const [path, options] of [
+        [withMark, { label: 'species', cv: 'loo' }],
+        [headerless, { label: 'column_5', cv: 'kfold:3', read: { header: false } }],
+      ] as [string, Partial<FitOptions>][]) {
+        const { report, script } = await fitAndWriteScript(path, options, language, folder);
+        const out = runScript(tool, script, ['--check'], folder);
+        assert.equal(out.status, 0, `${path}: --check failed:\n${out.stderr}`);
+        assertFiguresMatch(JSON.parse(out.stdout) as ExpectedFigures, report);
+      }
+    });
+
     it('--check fails with a readable list of differences when the data changed', async function () {
       requireTool(this, tool);
       const path = repoPath('sample-workspace', 'data', 'seal-leak.csv');

@@ -188,13 +188,13 @@ read_table <- function(path) {
                              comment.char = "", na.strings = character(0), strip.white = FALSE,
                              blank.lines.skip = TRUE, allowEscapes = FALSE, check.names = FALSE,
                              encoding = "UTF-8", fill = FALSE, stringsAsFactors = FALSE)
+  # A UTF-8 byte-order mark is not part of the first cell.
+  if (nrow(frame) > 0 && startsWith(frame[1, 1], "\ufeff")) frame[1, 1] <- substring(frame[1, 1], 2)
   first <- if (HEADER) as.character(frame[1, ]) else NULL
-  if (!is.null(first) && startsWith(first[1], "\ufeff")) first[1] <- substring(first[1], 2)
   names <- header_names(first, ncol(frame))
   body <- if (HEADER) frame[-1, , drop = FALSE] else frame
   require_columns(names, c(LABEL, SCREENED_FEATURES))
   labels <- body[[match(LABEL, names)]]
-  if (!HEADER && length(labels) > 0 && startsWith(labels[1], "\ufeff")) labels[1] <- substring(labels[1], 2)
   features <- lapply(SCREENED_FEATURES, function(name) cell_numbers(body[[match(name, names)]]))
   list(labels = labels, missing = trim_spaces(labels) %in% MISSING_TOKENS, features = features)
 }
