@@ -28,7 +28,7 @@ interface Tridiagonal {
   diagonal: Float64Array;
   /** off[i] couples i−1 and i (off[0] = 0). */
   off: Float64Array;
-  /** Work matrix whose row i holds the reflector u_i in columns 0..i−1. */
+  /** Packed lower triangle (row i starts at i(i+1)/2) whose row i holds the reflector u_i in columns 0..i−1. */
   reflectors: Float64Array;
   /** Reflector i is I − u_i u_iᵀ / h[i]; h[i] = 0 means no reflection at that step. */
   h: Float64Array;
@@ -39,8 +39,15 @@ interface Tridiagonal {
  * the leading i × i block (Golub & Van Loan 4th ed. §8.3.1; the scaling and sign choice of tred2).
  * Only the lower triangle of `a` is read.
  */
+/** Start of row i in packed lower-triangular storage. */
+function packedRow(i: number): number {
+  return (i * (i + 1)) / 2;
+}
+
 function tridiagonalize(a: Float64Array, n: number): Tridiagonal {
-  const w = Float64Array.from(a);
+  // The lower triangle, packed: half the memory of n × n, so each sweep streams contiguous data.
+  const w = new Float64Array((n * (n + 1)) / 2);
+  for (let i = 0; i < n; i++) w.set(a.subarray(i * n, i * n + i + 1), packedRow(i));
   const diagonal = new Float64Array(n);
   const off = new Float64Array(n);
   const h = new Float64Array(n);
@@ -51,7 +58,7 @@ function tridiagonalize(a: Float64Array, n: number): Tridiagonal {
   const q = new Float64Array(n);
   let pendingRow = -1; // row of w holding the pending u; -1 when no update is pending
   for (let i = n - 1; i >= 1; i--) {
-    const rowI = i * n;
+    const rowI = packedRow(i);
     if (pendingRow >= 0) {
       for (let k = 0; k <= i; k++) w[rowI + k] -= w[pendingRow + i] * q[k] + q[i] * w[pendingRow + k];
     }
@@ -59,7 +66,7 @@ function tridiagonalize(a: Float64Array, n: number): Tridiagonal {
     let scale = 0;
     for (let k = 0; k < i; k++) scale += Math.abs(w[rowI + k]);
     if (i === 1 || scale === 0) {
-      if (pendingRow >= 0) applyPendingUpdate(w, n, i, pendingRow, q);
+      if (pendingRow >= 0) applyPendingUpdate(w, i, pendingRow, q);
       off[i] = w[rowI + i - 1];
       h[i] = 0;
       pendingRow = -1;
@@ -81,7 +88,7 @@ function tridiagonalize(a: Float64Array, n: number): Tridiagonal {
     p.fill(0, 0, i);
     if (pendingRow >= 0) {
       for (let j = 0; j < i; j++) {
-        const rowJ = j * n;
+        const rowJ = packedRow(j);
         const uj = w[rowI + j];
         const oldU = w[pendingRow + j];
         const oldQ = q[j];
@@ -98,7 +105,7 @@ function tridiagonalize(a: Float64Array, n: number): Tridiagonal {
       }
     } else {
       for (let j = 0; j < i; j++) {
-        const rowJ = j * n;
+        const rowJ = packedRow(j);
         const uj = w[rowI + j];
         let sum = 0;
         for (let k = 0; k < j; k++) {
@@ -124,9 +131,9 @@ function tridiagonalize(a: Float64Array, n: number): Tridiagonal {
 }
 
 /** Applies A' ← A' − u qᵀ − q uᵀ to rows 0..size−1 of the lower triangle (u in row `uRow` of w). */
-function applyPendingUpdate(w: Float64Array, n: number, size: number, uRow: number, q: Float64Array): void {
+function applyPendingUpdate(w: Float64Array, size: number, uRow: number, q: Float64Array): void {
   for (let j = 0; j < size; j++) {
-    const rowJ = j * n;
+    const rowJ = packedRow(j);
     const uj = w[uRow + j];
     const qj = q[j];
     for (let k = 0; k <= j; k++) w[rowJ + k] -= uj * q[k] + qj * w[uRow + k];
@@ -257,7 +264,7 @@ function fullDecomposition(t: Tridiagonal, n: number, wanted: number): Symmetric
   for (let i = 1; i < n; i++) {
     const hh = t.h[i];
     if (hh === 0) continue;
-    const rowU = i * n;
+    const rowU = packedRow(i);
     y.fill(0, 0, i);
     for (let k = 0; k < i; k++) {
       const uk = w[rowU + k];
@@ -293,7 +300,7 @@ function applyReflectors(t: Tridiagonal, n: number, v: Float64Array): void {
   for (let i = 1; i < n; i++) {
     const hh = t.h[i];
     if (hh === 0) continue;
-    const rowU = i * n;
+    const rowU = packedRow(i);
     let s = 0;
     for (let k = 0; k < i; k++) s += w[rowU + k] * v[k];
     s /= hh;
