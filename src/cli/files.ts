@@ -101,7 +101,13 @@ export class OutputFile {
     fsyncSync(this.fd);
     closeSync(this.fd);
     this.fd = null;
-    renameSync(this.temporary, this.path);
+    try {
+      renameSync(this.temporary, this.path);
+    } catch (error) {
+      rmSync(this.temporary, { force: true });
+      const code = (error as NodeJS.ErrnoException).code;
+      throw new DataError('unwritable-output', `${this.path}: cannot be written (${code ?? String(error)}).`, { file: this.path }, 'Give the path of a file, in a folder you may write to.');
+    }
   }
 
   /** Removes the temporary file (after a failure). */

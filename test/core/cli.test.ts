@@ -116,6 +116,10 @@ describe('scatterwise CLI (the real dist/cli.js in a child process)', function (
       assert.match(result.stderr, /never writes to a data file/);
     }
     assert.equal(sha256(data), before);
+    const intoFolder = run('fit', data, '--out', dirname(data));
+    assert.equal(intoFolder.status, 2, intoFolder.stderr);
+    assert.match(intoFolder.stderr, /cannot be written/);
+    assert.deepEqual(readdirSync(dirname(data)).sort(), ['alias.csv', 'pumps.csv'], 'no temporary file left behind');
   });
 
   it('exits 2 with a message naming the file, line and column for bad input, never a stack trace', () => {

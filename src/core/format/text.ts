@@ -11,6 +11,14 @@ export const TOP_FEATURES_SHOWN = 10;
 /** Misclassified rows listed in the text and Markdown reports (the JSON keeps up to the limit). */
 export const MISCLASSIFIED_SHOWN = 10;
 
+/** Names listed on one line of the text report before `and N more`. */
+export const NAMES_SHOWN = 30;
+
+function shortList(names: readonly string[]): string {
+  const shown = names.slice(0, NAMES_SHOWN).join(', ');
+  return names.length > NAMES_SHOWN ? `${shown} and ${names.length - NAMES_SHOWN} more` : shown;
+}
+
 function testRow(name: string, test: MultivariateTest): string[] {
   // Without an F (no positive degrees of freedom) the degrees of freedom mean nothing either.
   const df = Number.isNaN(test.F) ? '—' : `${formatNumber(test.df1, 6)}, ${formatNumber(test.df2, 6)}`;
@@ -81,8 +89,8 @@ export function toText(report: FitReport): string {
   out.push(`Rows       ${rowsSentence(report)}`);
   out.push(`Label      '${printable(report.label)}', ${report.classes.length} classes, priors ${report.options.priors}`);
   out.push(textTable(['class', 'rows', 'prior'], report.classes.map((c) => [c.label, formatCount(c.count), formatNumber(c.prior, 3)]), ['left', 'right', 'right'], 4));
-  out.push(`Features   ${report.features.length} used: ${report.features.map(printable).join(', ')}`);
-  if (report.removedFeatures.length > 0) out.push(`Removed    ${report.removedFeatures.map((r) => `${printable(r.feature)} (${r.reason})`).join(', ')}`);
+  out.push(`Features   ${report.features.length} used: ${shortList(report.features.map(printable))}`);
+  if (report.removedFeatures.length > 0) out.push(`Removed    ${shortList(report.removedFeatures.map((r) => `${printable(r.feature)} (${r.reason})`))}`);
   out.push(`Solver     ${solverSentence(report)}`);
   out.push('');
 
