@@ -112,7 +112,9 @@ function checkRows(source: string, roles: ColumnRoles, pass: FirstPassResult): v
       'too-few-rows',
       `${source}: each class has a single row (${pass.used} rows, ${pass.appearance.length} classes): no within-class spread can be estimated.`,
       { file: source, column: label },
-      'A separability analysis needs classes with more than one row.',
+      roles.labelLooksContinuous
+        ? `The label '${label}' looks like a measurement, not a class; name the class column with --label.`
+        : 'A separability analysis needs classes with more than one row.',
     );
   }
 }
@@ -198,7 +200,7 @@ export async function analyze(source: ByteSource, partial?: Partial<FitOptions>,
       // `auto` chose k-fold although the row estimate said leave-one-out: collect the folds now.
       folds = (await runPass1(features, { count: cv.folds, seed: options.seed }, false)).folds;
     }
-    crossValidator = { kind: 'kfold', classifiers: foldClassifiers(moments, folds!, { solver: options.solver, priors: options.priors }), seed: options.seed };
+    crossValidator = { kind: 'kfold', classifiers: foldClassifiers(moments, folds!, { solver: options.solver, priors: options.priors }, solution), seed: options.seed };
   }
   const solved = now();
 
