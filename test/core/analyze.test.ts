@@ -341,3 +341,30 @@ describe('analyze: the same table as CSV, TSV and Parquet', function () {
     assert.equal(parquet.sample.lines, undefined);
   });
 });
+
+describe('analyze: options and the choice of cross-validation', () => {
+  it('fills defaults and rejects bad values with what to do', async () => {
+    const { resolveOptions } = await import('../../src/core/analyze');
+    const options = resolveOptions({ label: 'fault' });
+    assert.equal(options.cv, 'auto');
+    assert.equal(options.solver, 'auto');
+    assert.equal(options.label, 'fault');
+    for (const bad of [{ solver: 'fast' }, { cv: 'kfold:1' }, { cv: 'loocv' }, { seed: -1 }, { seed: 1.5 }, { missing: 'impute' }, { read: { delimiter: ':' } }, { label: 'x', exclude: ['x'] }]) {
+      assert.throws(() => resolveOptions(bad as Partial<FitOptions>), (e: unknown) => e instanceof DataError && e.code === 'bad-option' && (e.hint ?? '').length > 0, JSON.stringify(bad));
+    }
+  });
+
+  it('auto: leave-one-out while n·d² ≤ 2e9, else 10 folds; skips with a reason when classes are too small', async () => {
+    const { autoMethod, foldsToCollect, planCrossValidation } = await import('../../src/core/pipeline/crossValidation');
+    assert.equal(autoMethod(5_000_000, 20), 'loo');
+    assert.equal(autoMethod(5_000_001, 20), 'kfold:10');
+    assert.equal(foldsToCollect('auto', 1000, 20), undefined);
+    assert.equal(foldsToCollect('auto', 600_000, 20), 10, 'collected from a tenth of the limit on');
+    assert.equal(foldsToCollect('kfold:4', 10, 2), 4);
+    const classes = [{ label: 'a', count: 5 }, { label: 'b', count: 1 }];
+    const loo = planCrossValidation('loo', classes, 3);
+    assert.equal(loo.method, 'none');
+    assert.match((loo as { reason: string }).reason, /class 'b' has 1/);
+    assert.deepEqual(planCrossValidation('kfold:3', [{ label: 'a', count: 5 }, { label: 'b', count: 3 }], 3), { method: 'kfold:3', folds: 3 });
+  });
+});
