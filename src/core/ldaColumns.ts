@@ -5,7 +5,11 @@
  *  - constant within classes: zero within-class variance but not constant (perfect separation);
  *  - duplicate / dependent: the column is, within classes, a linear combination of kept columns
  *    (x_j = Σ c_i x_i + a constant per class), found by a pivoted Cholesky factorisation of the
- *    within-class correlation matrix D^{-1/2} S D^{-1/2} with a tolerance scaled to the data.
+ *    within-class correlation matrix D^{-1/2} S D^{-1/2} with a tolerance scaled to the data:
+ *    the caller (lda.ts) stops pivoting once every remaining Schur-complement diagonal is at most
+ *    eps·max(n, r) (the diagonal being 1), the rounding level of a cross-product matrix summed
+ *    over n rows of r columns — a column whose within-class variance is explained by the kept
+ *    ones to 1 − eps·max(n, r) is treated as their combination.
  * Zero variance is judged against the rounding level of the values themselves: a column whose
  * sum of squared deviations is at most n·(4·eps·max|x|)² cannot be told from a constant one.
  */
