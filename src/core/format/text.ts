@@ -129,13 +129,10 @@ export function toText(report: FitReport): string {
   if (report.misclassifiedTotal > 0) {
     const shown = report.misclassified.slice(0, MISCLASSIFIED_SHOWN);
     out.push(`Misclassified ${cv ? 'under cross-validation' : 'in training'}: ${formatCount(report.misclassifiedTotal)} rows${shown.length < report.misclassifiedTotal ? `, first ${shown.length}` : ''}`);
-    out.push(
-      textTable(
-        ['line', 'row', 'label', 'predicted', 'posterior'],
-        shown.map((m) => [m.line === undefined ? '' : String(m.line), String(m.row), m.label, m.predicted, formatNumber(m.posterior, 3)]),
-        ['right', 'right', 'left', 'left', 'right'],
-      ),
-    );
+    // Parquet rows have no line: the column is left out rather than shown empty.
+    const lines = shown.some((m) => m.line !== undefined);
+    const rows = shown.map((m) => [...(lines ? [m.line === undefined ? '' : String(m.line)] : []), String(m.row), m.label, m.predicted, formatNumber(m.posterior, 3)]);
+    out.push(textTable([...(lines ? ['line'] : []), 'row', 'label', 'predicted', 'posterior'], rows, [...(lines ? ['right' as const] : []), 'right', 'left', 'left', 'right']));
   }
   out.push('');
 
