@@ -10,6 +10,7 @@ import type { Progress, RunControl } from '../source';
 export class PassControl {
   private readonly abort = new AbortController();
   private stopped = false;
+  private detach: () => void = () => {};
   readonly control: RunControl;
 
   constructor(
@@ -19,7 +20,11 @@ export class PassControl {
     const signal = outer?.signal;
     if (signal) {
       if (signal.aborted) this.abort.abort();
-      else signal.addEventListener('abort', () => this.abort.abort(), { once: true });
+      else {
+        const forward = (): void => this.abort.abort();
+        signal.addEventListener('abort', forward, { once: true });
+        this.detach = () => signal.removeEventListener('abort', forward);
+      }
     }
     this.control = {
       signal: this.abort.signal,
@@ -46,6 +51,8 @@ export class PassControl {
     } catch (error) {
       if (this.stopped && !this.outer?.signal?.aborted && (error instanceof CancelledError || (error as Error)?.name === 'AbortError')) return undefined;
       throw error;
+    } finally {
+      this.detach();
     }
   }
 }
