@@ -4,9 +4,8 @@
  * generated script in a new untitled editor. Called from the palette (the active data file) or by
  * the panel with the file's URI and its current options. The data file is only read.
  *
- * Registration (extension.ts): `context.subscriptions.push(registerGenerateScript(workers))`, and a
- * `contributes.commands` entry { "command": "scatterwise.generateScript", "title": "Generate Fit
- * Script", "category": "Scatterwise" }.
+ * Arguments (all optional): the data file's URI, the panel's options, and `{ language, dialect }`
+ * to skip the questions (tests and other callers). Resolves to the opened untitled document.
  */
 import * as vscode from 'vscode';
 import { version } from '../../../package.json';
@@ -64,25 +63,36 @@ function fitInWorker(workers: FitWorkers, path: string, options: Partial<FitOpti
   });
 }
 
-async function generate(workers: FitWorkers, passedUri: unknown, passedOptions: unknown): Promise<void> {
+/** The language (and SQL dialect) passed by a caller, when valid. */
+function passedChoice(choice: unknown): { language: Language; dialect?: SqlDialect } | undefined {
+  if (typeof choice !== 'object' || choice === null) return undefined;
+  const { language, dialect } = choice as { language?: unknown; dialect?: unknown };
+  const known = LANGUAGES.find((l) => l.id === language);
+  if (!known) return undefined;
+  if (known.id !== 'sql') return { language: known.id };
+  return SQL_DIALECTS.includes(dialect as SqlDialect) ? { language: 'sql', dialect: dialect as SqlDialect } : undefined;
+}
+
+async function generate(workers: FitWorkers, passedUri: unknown, passedOptions: unknown, passed: unknown): Promise<vscode.TextDocument | undefined> {
   const uri = targetFile(passedUri);
   if (uri === undefined || !/\.(csv|tsv|tab|parquet)$/i.test(uri.path)) {
     void vscode.window.showErrorMessage('Scatterwise: open a CSV, TSV or Parquet file first, then generate its fit script.');
-    return;
+    return undefined;
   }
   if (uri.scheme !== 'file') {
     void vscode.window.showErrorMessage('Scatterwise: fit scripts can be generated for files on this machine only.');
-    return;
+    return undefined;
   }
-  const language = await vscode.window.showQuickPick(LANGUAGES, { title: 'Generate fit script', placeHolder: 'Language of the script' });
-  if (!language) return;
-  let dialect: SqlDialect | undefined;
-  if (language.id === 'sql') {
+  const choice = passedChoice(passed);
+  const language = choice ? LANGUAGES.find((l) => l.id === choice.language) : await vscode.window.showQuickPick(LANGUAGES, { title: 'Generate fit script', placeHolder: 'Language of the script' });
+  if (!language) return undefined;
+  let dialect: SqlDialect | undefined = choice?.dialect;
+  if (language.id === 'sql' && dialect === undefined) {
     const picked = await vscode.window.showQuickPick(
       SQL_DIALECTS.map((d) => ({ label: d })),
       { title: 'Generate fit script', placeHolder: 'SQL dialect (identifier and string quoting)' },
     );
-    if (!picked) return;
+    if (!picked) return undefined;
     dialect = picked.label as SqlDialect;
   }
   const panel = (passedOptions ?? {}) as Partial<EditableOptions>;
@@ -114,16 +124,18 @@ async function generate(workers: FitWorkers, passedUri: unknown, passedOptions: 
   );
   const document = await vscode.workspace.openTextDocument({ language: EDITOR_LANGUAGE[language.id], content: text });
   await vscode.window.showTextDocument(document, { preview: false });
+  return document;
 }
 
 export function registerGenerateScript(workers: FitWorkers): vscode.Disposable {
-  return vscode.commands.registerCommand(GENERATE_SCRIPT_COMMAND, async (uri?: unknown, options?: unknown) => {
+  return vscode.commands.registerCommand(GENERATE_SCRIPT_COMMAND, async (uri?: unknown, options?: unknown, choice?: unknown) => {
     try {
-      await generate(workers, uri, options);
+      return await generate(workers, uri, options, choice);
     } catch (error) {
-      if (error instanceof vscode.CancellationError) return;
+      if (error instanceof vscode.CancellationError) return undefined;
       const message = error instanceof DataError ? `${error.message}${error.hint ? ` ${error.hint}` : ''}` : error instanceof Error ? error.message : String(error);
       void vscode.window.showErrorMessage(`Scatterwise: could not generate the script: ${message}`);
+      return undefined;
     }
   });
 }
