@@ -282,6 +282,13 @@ describe('analyze: the pipeline end to end', function () {
     const abort = new AbortController();
     abort.abort();
     await assert.rejects(analyze(sourceOf(text), {}, { signal: abort.signal }), CancelledError);
+    // Cancelled in the middle of the second pass: the caller's cancellation is not taken for an early stop.
+    const midway = new AbortController();
+    const passes = new Set<string>();
+    const onProgress = (p: { pass: string }): void => void passes.add(p.pass);
+    const onScores = (): void => midway.abort(); // during the first batch of pass 2
+    await assert.rejects(analyze(sourceOf(text), { cv: 'none' }, { signal: midway.signal, onProgress, onScores }), CancelledError);
+    assert.ok(passes.has('inspect') && passes.has('moments'), [...passes].join(', '));
   });
 
   it('hands the discriminant scores of every row to the caller, empty for dropped rows', async () => {
