@@ -62,3 +62,28 @@ export async function overlayPixels(page: Page, plotId: string): Promise<number>
     return count;
   }, plotId);
 }
+
+/** A spot (CSS pixels from the canvas's top left) where the plot drew exactly this colour, or null. */
+export async function findColour(page: Page, plotId: string, colour: string): Promise<{ x: number; y: number } | null> {
+  return page.evaluate(
+    ({ plotId, colour }) => {
+      const canvas = document.querySelector(`figure[data-plot="${plotId}"] canvas.plot-canvas:not(.plot-overlay)`);
+      if (!canvas) throw new Error(`no canvas for plot ${plotId}`);
+      const { width, height } = canvas;
+      const data = canvas.getContext('2d').getImageData(0, 0, width, height).data;
+      const target = [1, 3, 5].map((i) => parseInt(colour.slice(i, i + 2), 16));
+      const ratio = width / canvas.getBoundingClientRect().width;
+      // Scan from the middle outwards in rows, so the spot is well inside the plot area.
+      for (let step = 0; step < height / 2; step++) {
+        for (const y of [Math.floor(height / 2) + step, Math.floor(height / 2) - step]) {
+          for (let x = Math.floor(width * 0.15); x < width * 0.95; x++) {
+            const o = (y * width + x) * 4;
+            if (data[o] === target[0] && data[o + 1] === target[1] && data[o + 2] === target[2]) return { x: x / ratio, y: y / ratio };
+          }
+        }
+      }
+      return null;
+    },
+    { plotId, colour },
+  );
+}

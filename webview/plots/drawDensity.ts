@@ -8,7 +8,7 @@ import { drawAxes } from './drawAxes';
 import { markerStyle, type DensityScene } from './scene';
 import type { PlotTheme } from './theme';
 import type { ViewRange } from '../state';
-import { traceMarker } from './markers';
+import { blendPoints, coverageMask, hexColour, type PointLayer } from './pointRaster';
 
 export interface DensityLayout {
   /** Maps x and density values to pixels in the curve area. */
@@ -80,23 +80,29 @@ export function drawDensity(context: CanvasRenderingContext2D, scene: DensitySce
     context.globalAlpha = 1;
   });
 
-  if (scene.strip) {
-    context.font = `${Math.round(theme.fontSize * 0.8)}px ${theme.fontFamily}`;
-    const { radius, alpha } = markerStyle(scene.values.length);
-    const markerRadius = Math.min(radius, layout.rowHeight * 0.3);
-    context.globalAlpha = alpha;
-    scene.members.forEach((members, c) => {
-      context.fillStyle = scene.classes[c].colour;
-      context.beginPath();
-      for (let k = 0; k < members.length; k++) {
-        const point = stripPosition(scene, layout, members[k]);
-        if (!point || point.x < area.left - markerRadius || point.x > area.right + markerRadius) continue;
-        traceMarker(context, scene.classes[c].shape, point.x, point.y, markerRadius);
-      }
-      context.fill();
-    });
-    context.globalAlpha = 1;
-  }
   context.restore();
+  if (scene.strip) drawStrip(context, scene, layout, area);
   return layout;
+}
+
+/** The points as one strip per class under the curves, blended into the pixels like the scatter's. */
+function drawStrip(context: CanvasRenderingContext2D, scene: DensityScene, layout: DensityLayout, area: PlotArea): void {
+  const transform = context.getTransform();
+  const { radius, alpha } = markerStyle(scene.values.length);
+  const markerRadius = Math.min(radius, layout.rowHeight * 0.3);
+  const layers: PointLayer[] = scene.members.map((members, c) => {
+    const positions = new Float32Array(2 * members.length);
+    let count = 0;
+    for (let k = 0; k < members.length; k++) {
+      const point = stripPosition(scene, layout, members[k]);
+      if (!point || point.x < area.left - markerRadius || point.x > area.right + markerRadius) continue;
+      positions[2 * count] = transform.a * point.x + transform.e;
+      positions[2 * count + 1] = transform.d * point.y + transform.f;
+      count++;
+    }
+    return { colour: hexColour(scene.classes[c].colour), mask: coverageMask(scene.classes[c].shape, markerRadius * transform.a), positions, count };
+  });
+  const top = layout.stripTop - layout.rowHeight * 0.1;
+  const rect = { left: transform.a * (area.left + 1) + transform.e, top: transform.d * top + transform.f, width: transform.a * (area.right - area.left - 2), height: transform.d * (area.bottom - 1 - top) };
+  blendPoints(context, rect, layers, alpha);
 }

@@ -1,7 +1,7 @@
 /**
- * Draws a scatter scene on a canvas: grid and axes, each class's 95% ellipse, the points batched by
- * class (one path per chunk of points, no object per point; chunks of the classes alternate so no
- * class is always painted last), then the centroids. The overlay (hover, selection, marked rows) is
+ * Draws a scatter scene on a canvas: grid and axes, each class's 95% ellipse, the points blended
+ * into the pixels by class (pointRaster.ts; chunks of the classes alternate so no class is always
+ * painted last), then the centroids. The overlay (hover, selection, marked rows) is
  * a second canvas on top, so moving the pointer never repaints the points.
  */
 import type { HighlightState } from './highlight';
@@ -11,10 +11,11 @@ import { ellipseOutline } from './ellipse';
 import { markerStyle, type ScatterScene } from './scene';
 import type { PlotTheme } from './theme';
 import { traceMarker } from './markers';
+import { blendPoints, coverageMask, hexColour, type PointLayer } from './pointRaster';
 
 const CHUNK = 4096;
 
-export function drawScatter(context: CanvasRenderingContext2D, scene: ScatterScene, projection: Projection, theme: PlotTheme, pixelRatio: number): void {
+export function drawScatter(context: CanvasRenderingContext2D, scene: ScatterScene, projection: Projection, theme: PlotTheme): void {
   const { area } = projection;
   context.fillStyle = theme.background;
   context.fillRect(0, 0, area.width, area.height);
@@ -39,7 +40,7 @@ export function drawScatter(context: CanvasRenderingContext2D, scene: ScatterSce
   });
   context.setLineDash([]);
 
-  drawPoints(context, scene, projection, pixelRatio);
+  drawPoints(context, scene, projection);
 
   for (let c = 0; c < scene.classes.length; c++) {
     const centroid = scene.centroids[c];
@@ -55,41 +56,47 @@ export function drawScatter(context: CanvasRenderingContext2D, scene: ScatterSce
   context.restore();
 }
 
-function drawPoints(context: CanvasRenderingContext2D, scene: ScatterScene, projection: Projection, pixelRatio: number): void {
+function drawPoints(context: CanvasRenderingContext2D, scene: ScatterScene, projection: Projection): void {
   const { radius, alpha } = markerStyle(scene.x.length);
-  // Below about 2.5 device pixels a shape cannot be told apart; squares are then drawn (much faster).
-  const tiny = radius * pixelRatio < 2.5;
-  const { view } = projection;
+  // Pixels are written in device units: map the plot's CSS pixels through the canvas transform.
+  const transform = context.getTransform();
+  const scale = transform.a;
+  const { area, view } = projection;
   const marginX = radius / projection.scaleX;
   const marginY = radius / projection.scaleY;
   const x0 = view.x0 - marginX;
   const x1 = view.x1 + marginX;
   const y0 = view.y0 - marginY;
   const y1 = view.y1 + marginY;
-  context.globalAlpha = alpha;
+  // Data → device pixels as one multiply-add per coordinate.
+  const kx = transform.a * projection.scaleX;
+  const bx = transform.a * (area.left - view.x0 * projection.scaleX) + transform.e;
+  const ky = -transform.d * projection.scaleY;
+  const by = transform.d * (area.bottom + view.y0 * projection.scaleY) + transform.f;
+  const layers: PointLayer[] = [];
   const longest = Math.max(0, ...scene.members.map((m) => m.length));
   for (let start = 0; start < longest; start += CHUNK) {
     for (let c = 0; c < scene.members.length; c++) {
       const members = scene.members[c];
       if (start >= members.length) continue;
-      const shape = scene.classes[c].shape;
-      context.fillStyle = scene.classes[c].colour;
-      context.beginPath();
       const end = Math.min(members.length, start + CHUNK);
+      const positions = new Float32Array(2 * (end - start));
+      let count = 0;
       for (let k = start; k < end; k++) {
         const i = members[k];
         const x = scene.x[i];
         const y = scene.y[i];
         if (!(x >= x0 && x <= x1 && y >= y0 && y <= y1)) continue;
-        const px = projection.x(x);
-        const py = projection.y(y);
-        if (tiny) context.rect(px - radius, py - radius, 2 * radius, 2 * radius);
-        else traceMarker(context, shape, px, py, radius);
+        positions[2 * count] = kx * x + bx;
+        positions[2 * count + 1] = ky * y + by;
+        count++;
       }
-      context.fill();
+      const style = scene.classes[c];
+      layers.push({ colour: hexColour(style.colour), mask: coverageMask(style.shape, radius * scale), positions, count });
     }
   }
-  context.globalAlpha = 1;
+  const rect = { left: transform.a * (area.left + 1) + transform.e, top: transform.d * (area.top + 1) + transform.f, width: scale * (area.right - area.left - 2), height: scale * (area.bottom - area.top - 2) };
+  blendPoints(context, rect, layers, alpha);
 }
 
 /** Rings around the marked, selected and hovered points. */

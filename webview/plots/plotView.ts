@@ -129,7 +129,7 @@ export class PlotView {
   private render(context: CanvasRenderingContext2D, width: number, height: number, theme: PlotTheme, ratio: number): void {
     const { scene } = this.options;
     const area = plotArea(width, height, theme.fontSize);
-    if (scene.kind === 'scatter') drawScatter(context, scene, new Projection(this.view, area), theme, ratio);
+    if (scene.kind === 'scatter') drawScatter(context, scene, new Projection(this.view, area), theme);
     else this.densityGeometry = drawDensity(context, scene, this.view, area, theme);
   }
 

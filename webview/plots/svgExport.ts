@@ -10,10 +10,8 @@ import { markerStyle, type ClassStyle, type DensityScene, type PlotScene, type S
 import type { PlotTheme } from './theme';
 import type { ViewRange } from '../state';
 import { markerPathData } from '../palette';
+import { escapeXml } from './xml';
 
-export function escapeXml(text: string): string {
-  return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&apos;' })[c] as string);
-}
 
 const r2 = (value: number): string => (Math.round(value * 100) / 100).toString();
 

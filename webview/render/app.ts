@@ -8,7 +8,7 @@ import type { ColumnChoice, ComparisonMessage, EditableOptions, ErrorMessage, Pa
 import { button, clear, element } from '../dom';
 import type { StateStore } from '../state';
 import type { HostConnection } from '../vscodeApi';
-import { comparisonSection } from './comparison';
+import { renderComparison } from './comparison';
 import { renderReport, type RenderedReport } from './report';
 import { errorView, progressStrip } from './status';
 
@@ -88,14 +88,20 @@ export class PanelApp {
       this.content.appendChild(element('p', { className: 'app-waiting', text: 'Waiting for the analysis…' }));
       return;
     }
-    if (this.comparison) this.content.appendChild(comparisonSection(this.comparison));
-    this.rendered = renderReport(this.report, {
+    const stem = fileStem(this.fileName || this.report.source.name);
+    const comparison = this.comparison ? renderComparison(this.comparison, { store: this.store, post, fileStem: stem }) : null;
+    if (comparison) this.content.appendChild(comparison.element);
+    const rendered = renderReport(this.report, {
       store: this.store,
       post,
-      fileStem: fileStem(this.fileName || this.report.source.name),
+      fileStem: stem,
       columns: this.columns,
       options: this.options ?? { ...this.report.options, label: this.report.label, features: this.report.features },
     });
+    this.rendered = comparison ? { element: rendered.element, dispose: () => {
+      comparison.dispose();
+      rendered.dispose();
+    } } : rendered;
     this.content.appendChild(this.rendered.element);
   }
 
@@ -106,8 +112,8 @@ export class PanelApp {
     this.header.append(
       element('h1', { className: 'file-name', text: name || 'Scatterwise' }),
       element('div', { className: 'header-actions' }, [
-        button('Generate fit script', () => post({ type: 'command', command: 'generateScript' }), { attributes: { disabled: !this.report } }),
-        button('Compare with HEAD', () => post({ type: 'command', command: 'compareWithHead' }), { attributes: { disabled: !this.report } }),
+        button('Generate fit script', () => post({ type: 'command', command: 'generateScript' }), { attributes: { disabled: !this.report || this.error !== null } }),
+        button('Compare with HEAD', () => post({ type: 'command', command: 'compareWithHead' }), { attributes: { disabled: !this.report || this.error !== null } }),
       ]),
     );
     if (this.settings && this.report && this.settings.plotBudget !== this.report.options.plotBudget) {

@@ -13,43 +13,13 @@ import { PlotView, type PointDescription } from '../plots/plotView';
 import { classStyles, densityScene, scatterScene, type ClassStyle, type PlotScene, type ScatterScene } from '../plots/scene';
 import type { StateStore } from '../state';
 import { dataTable } from '../tables/table';
+import type { SampleColumns } from '../sample';
 
 export interface ProjectionActions {
   hub: HighlightHub;
   store: StateStore;
   onExport: (kind: 'png' | 'svg', fileName: string, data: string) => void;
   reveal: (row: number, line: number | undefined) => void;
-}
-
-/** The sample's columns as typed arrays, built once per report. */
-export interface SampleColumns {
-  count: number;
-  classIndex: Int32Array;
-  discriminant: Float64Array[];
-  principal: Float64Array[];
-  /** Data row → sample index. */
-  indexOfRow: Map<number, number>;
-}
-
-export function sampleColumns(report: FitReport): SampleColumns {
-  const { sample } = report;
-  const count = sample.rows.length;
-  const column = (rows: number[][], j: number): Float64Array => {
-    const out = new Float64Array(count);
-    for (let i = 0; i < count; i++) out[i] = rows[i]?.[j] ?? NaN;
-    return out;
-  };
-  const ldCount = Math.min(sample.ld[0]?.length ?? 0, report.discriminant.eigenvalues.length);
-  const pcCount = Math.min(sample.pc[0]?.length ?? 0, report.pca.explainedRatio.length, 2);
-  const indexOfRow = new Map<number, number>();
-  sample.rows.forEach((row, i) => indexOfRow.set(row, i));
-  return {
-    count,
-    classIndex: Int32Array.from(sample.classIndex),
-    discriminant: Array.from({ length: ldCount }, (_, j) => column(sample.ld, j)),
-    principal: Array.from({ length: pcCount }, (_, j) => column(sample.pc, j)),
-    indexOfRow,
-  };
 }
 
 function axisTitle(prefix: string, index: number, ratio: number | undefined): string {

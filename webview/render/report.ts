@@ -16,7 +16,8 @@ import { featuresSection } from '../tables/features';
 import { findingsSection } from '../tables/findings';
 import { statisticsSection } from '../tables/statistics';
 import { ColumnMarks } from './marks';
-import { projectionsSection, sampleColumns } from './projections';
+import { projectionsSection } from './projections';
+import { sampleColumns } from '../sample';
 import { tabs, type Tabs } from './tabs';
 import { verdictBlock } from './verdict';
 
@@ -44,11 +45,11 @@ export function renderReport(report: FitReport, context: ReportContext): Rendere
 
   const reveal = (row: number, line?: number): void => post(line === undefined ? { type: 'revealRow', row } : { type: 'revealRow', row, line });
   const lineOfRow = (row: number): number | undefined => {
-    const index = columns.indexOfRow.get(row);
+    const index = columns.indexOfRow(row);
     return index === undefined ? report.misclassified.find((m) => m.row === row)?.line : report.sample.lines?.[index];
   };
   const onExport = (kind: 'png' | 'svg', fileName: string, data: string): void => post({ type: 'export', kind, fileName: `${context.fileStem}-${fileName}`, data });
-  const plottedRows = (rows: readonly number[]): number[] => rows.map((row) => columns.indexOfRow.get(row)).filter((i): i is number => i !== undefined);
+  const plottedRows = (rows: readonly number[]): number[] => rows.map((row) => columns.indexOfRow(row)).filter((i): i is number => i !== undefined);
 
   const findingsHolder = element('div', { className: 'findings-holder' });
   const applyFinding = (index: number | null): void => {

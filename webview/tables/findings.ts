@@ -49,7 +49,7 @@ export function findingsSection(report: FitReport, actions: FindingActions): HTM
       const selected = actions.selected === index;
       const toggle = element('button', {
         className: `finding finding-${finding.severity}`,
-        attributes: { type: 'button', 'aria-pressed': String(selected), 'data-code': finding.code },
+        attributes: { type: 'button', 'aria-pressed': String(selected), 'data-code': finding.code, 'data-index': index },
       }, [
         element('span', { className: `severity severity-${finding.severity}`, text: SEVERITY_WORD[finding.severity] }),
         element('span', { className: 'finding-code', text: finding.code }),
