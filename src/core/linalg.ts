@@ -109,9 +109,10 @@ export function pivotedCholesky(a: Float64Array, n: number, tolerance: number): 
     const rowK = k * n;
     l[rowK + k] = pivot;
     const original = pivots[k];
+    const originalRow = original * n;
     for (let p = k + 1; p < n; p++) {
       const rowP = p * n;
-      let sum = a[pivots[p] * n + original];
+      let sum = a[originalRow + pivots[p]]; // A is symmetric: read row `original`, not its column
       for (let j = 0; j < k; j++) sum -= l[rowP + j] * l[rowK + j];
       const value = sum / pivot;
       l[rowP + k] = value;
