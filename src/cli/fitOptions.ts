@@ -40,7 +40,7 @@ export const FIT_OPTION_SPECS: readonly OptionSpec[] = [
   { name: 'missing', value: 'POLICY', values: MISSING_POLICIES, describe: 'drop rows with a missing value, or drop every feature column that has one' },
   { name: 'pca', value: 'SCALE', values: PCA_SCALES, describe: 'PCA of the covariance or of the correlation (standardized) matrix' },
   { name: 'delimiter', value: 'C', check: (v) => (v in DELIMITER_NAMES ? null : 'expected , tab ; or |'), describe: 'field delimiter of a text file: , tab ; | (default: sniffed)' },
-  { name: 'no-header', describe: 'the first row is data, not column names' },
+  { name: 'no-header', describe: 'the first row is data, not column names (columns are then named column_1, column_2, …)' },
   { name: 'skip-ragged-rows', describe: 'skip rows with the wrong number of fields (counted in the report) instead of stopping' },
 ];
 

@@ -105,6 +105,17 @@ describe('scatterwise CLI (the real dist/cli.js in a child process)', function (
     assert.ok(lines.slice(1).every((l) => l === ',' || l.split(',').every((v) => Number.isFinite(Number(v)))));
   });
 
+  it('--no-header names the columns column_1, column_2, … and --delimiter takes a name', () => {
+    const rows = pumpTable().rows.map((r) => r.slice(1).join(';'));
+    const data = writeTemporary('pumps.txt', `${rows.join('\n')}\n`);
+    const result = run('fit', data, '--no-header', '--delimiter', 'semicolon', '--label', 'column_5', '--format', 'json');
+    assert.equal(result.status, 0, result.stderr);
+    const report = JSON.parse(result.stdout) as FitReport;
+    assert.deepEqual(report.features, ['column_1', 'column_2', 'column_3', 'column_4']);
+    assert.equal(report.rows.total, 120);
+    assert.equal(report.source.delimiter, ';');
+  });
+
   it('refuses an output that is the data file, also through a link', () => {
     const data = writeTemporary('pumps.csv', toCsv(pumpTable()));
     const before = sha256(data);
