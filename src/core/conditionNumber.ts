@@ -8,7 +8,7 @@
  * Ritz value changes by less than 1e-12 relative over three steps (or the Krylov space is
  * exhausted, where the value is exact). Deterministic: the start vector comes from a fixed seed.
  */
-import { solveLower, solveLowerTranspose, symmetricEigenvalues, tridiagonalEigenvalues } from './linalg';
+import { multiply, solveLower, solveLowerTranspose, symmetricEigenvalues, tridiagonalEigenvalues } from './linalg';
 
 const DIRECT_LIMIT = 64;
 
@@ -85,14 +85,7 @@ export function conditionNumber(a: Float64Array, factor: Float64Array, m: number
     largest = values[0];
     smallest = values[m - 1];
   } else {
-    largest = largestEigenvalue((x, out) => {
-      for (let i = 0; i < m; i++) {
-        let s = 0;
-        const row = i * m;
-        for (let j = 0; j < m; j++) s += a[row + j] * x[j];
-        out[i] = s;
-      }
-    }, m);
+    largest = largestEigenvalue((x, out) => multiply(a, m, m, x, out), m);
     const inverseLargest = largestEigenvalue((x, out) => {
       out.set(x);
       solveLower(factor, m, out);
