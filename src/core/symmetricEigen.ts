@@ -92,13 +92,27 @@ function tridiagonalize(a: Float64Array, n: number): Tridiagonal {
         const uj = w[rowI + j];
         const oldU = w[pendingRow + j];
         const oldQ = q[j];
+        // Two columns per turn with two partial sums, so the additions to `sum` overlap.
         let sum = 0;
-        for (let k = 0; k < j; k++) {
+        let sum2 = 0;
+        let k = 0;
+        for (; k + 1 < j; k += 2) {
+          const v = w[rowJ + k] - (oldU * q[k] + oldQ * w[pendingRow + k]);
+          const v2 = w[rowJ + k + 1] - (oldU * q[k + 1] + oldQ * w[pendingRow + k + 1]);
+          w[rowJ + k] = v;
+          w[rowJ + k + 1] = v2;
+          sum += v * w[rowI + k];
+          sum2 += v2 * w[rowI + k + 1];
+          p[k] += v * uj;
+          p[k + 1] += v2 * uj;
+        }
+        for (; k < j; k++) {
           const v = w[rowJ + k] - (oldU * q[k] + oldQ * w[pendingRow + k]);
           w[rowJ + k] = v;
           sum += v * w[rowI + k];
           p[k] += v * uj;
         }
+        sum += sum2;
         const diagonalValue = w[rowJ + j] - 2 * oldU * oldQ;
         w[rowJ + j] = diagonalValue;
         p[j] += sum + diagonalValue * uj;
