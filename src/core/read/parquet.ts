@@ -144,6 +144,9 @@ function schemaNotes(columns: ParquetColumn[]): ReaderNote[] {
 export async function inspectParquet(source: ByteSource, options: ReadOptions, control?: RunControl, tuning: ParquetTuning = DEFAULT_PARQUET_TUNING): Promise<TableInspection> {
   const progress = new PassProgress(control, 'inspect', source.size);
   const opened = await openParquet(source);
+  if (opened.rows === 0) {
+    throw new DataError('no-data-rows', `${source.name} is a Parquet file without rows.`, { file: source.name }, 'Check that the file was written completely.');
+  }
   const rules = cellRulesFor(options);
   const sampledRows = Math.min(opened.rows, tuning.sampleRows);
   const reader = new ParquetFeatureReader(rules);

@@ -4,6 +4,7 @@
  * JSON, which comes from DuckDB reading the file back or from the data given to the writer.
  */
 import { strict as assert } from 'node:assert';
+import { parquetWriteBuffer } from 'hyparquet-writer';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { CancelledError, DataError } from '../../../src/core/errors';
@@ -133,6 +134,11 @@ describe('parquet', function () {
       scanTable({ source, inspection, plan: { label: 0, features: [nested] }, onBatch: () => {} }),
       (error: unknown) => error instanceof DataError && error.code === 'nested-column' && error.message.includes('sensor_meta'),
     );
+  });
+
+  it('a file without rows', async () => {
+    const empty = new Uint8Array(parquetWriteBuffer({ columnData: [{ name: 'vibration_rms', data: [], type: 'DOUBLE' }, { name: 'fault', data: [], type: 'STRING' }] }));
+    await assert.rejects(inspectTable(memorySource('empty.parquet', empty)), (error: unknown) => error instanceof DataError && error.code === 'no-data-rows' && error.message.includes('empty.parquet'));
   });
 
   describe('damaged files', () => {
