@@ -236,7 +236,10 @@ describe('panel interaction', function () {
   });
 
   it('marks the columns and rows of a selected finding', async () => {
-    const page = await openReport(panels);
+    const { page } = await panels.open();
+    await applyTheme(page, 'light');
+    const report = readFixture('pump-faults-defects.json');
+    await showReport(page, report);
     const withColumns = report.findings.findIndex((f) => (f.columns?.length ?? 0) > 0 && report.features.includes(f.columns![0]));
     assert.ok(withColumns >= 0, 'the fixture has a finding that names a feature');
     const finding = report.findings[withColumns];

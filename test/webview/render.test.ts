@@ -249,4 +249,27 @@ describe('panel rendering', function () {
     assertShows(training[2], report.accuracy.training, 'training accuracy now');
     assert.equal(await page.locator('.verdict').count(), 1, 'the current report follows');
   });
+
+  it('shows the planted defects: dropped rows, removed features, findings by severity, Box’s M skipped', async () => {
+    const { page } = await panels.open();
+    const defects = readFixture('pump-faults-defects.json');
+    await showReport(page, defects);
+    const facts = (await page.textContent('.facts')) ?? '';
+    assert.ok(facts.includes(`${defects.rows.dropped.toLocaleString('en-US')} dropped`), facts);
+    if (defects.removedFeatures.length) assert.ok(facts.includes(`${defects.removedFeatures.length} removed before solving`));
+    await page.click('[data-tab="features"]');
+    const removed = await page.locator('.removed-features li').allTextContents();
+    assert.deepEqual(removed, defects.removedFeatures.map((r) => `${r.feature} — ${r.reason}`));
+    await page.click('[data-tab="findings"]');
+    const codes = await page.$$eval('.finding', (nodes) => nodes.map((n: any) => ({ code: n.dataset.code, severity: n.querySelector('.severity').textContent, message: n.querySelector('.finding-message').textContent })));
+    assert.equal(codes.length, defects.findings.length);
+    const order = ['Error', 'Warning', 'Note'];
+    for (let i = 1; i < codes.length; i++) assert.ok(order.indexOf(codes[i - 1].severity) <= order.indexOf(codes[i].severity), 'errors first, then warnings, then notes');
+    for (const finding of defects.findings) assert.ok(codes.some((c) => c.code === finding.code && c.message === finding.message), `finding ${finding.code} shown with its message`);
+    assert.match((await page.textContent('[data-tab="findings"]')) ?? '', new RegExp(`Findings \\(${defects.findings.length}`));
+    if (!defects.tests.boxM) {
+      await page.click('[data-tab="statistics"]');
+      assert.equal(await page.locator('.box-m-skipped').count(), 1);
+    }
+  });
 });

@@ -85,6 +85,15 @@ describe('panel themes', function () {
         const worst = await lowestContrast(page, TEXT_SELECTORS[tab]);
         assert.ok(worst.ratio >= 4.5, `${theme}, ${tab}: contrast ${worst.ratio.toFixed(2)} for ${worst.text}`);
       }
+      // The file with planted defects: many findings of every severity, removed features.
+      await showReport(page, readFixture('pump-faults-defects.json'));
+      for (const tab of ['findings', 'features']) {
+        await page.click(`[data-tab="${tab}"]`);
+        if (tab === 'findings') await page.click('.finding >> nth=1');
+        await page.screenshot({ path: join(SCREENSHOTS, `defects-${tab}-${theme}.png`), fullPage: true });
+        const worst = await lowestContrast(page, TEXT_SELECTORS[tab]);
+        assert.ok(worst.ratio >= 4.5, `${theme}, defects ${tab}: contrast ${worst.ratio.toFixed(2)} for ${worst.text}`);
+      }
     });
   }
 
