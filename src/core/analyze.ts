@@ -37,13 +37,15 @@ import type { ByteSource, RunControl } from './source';
 import type { FitOptions, FitReport, Finding } from './types';
 import { foldsToCollect, planCrossValidation } from './pipeline/crossValidation';
 import type { CvPlan } from './pipeline/crossValidation';
-import { firstPass, missingCells, nonNumericExamples } from './pipeline/firstPass';
+import { missingCells, nonNumericExamples } from './pipeline/firstPass';
 import type { FirstPassResult } from './pipeline/firstPass';
 import { fitMoments } from './pipeline/fitMoments';
 import type { DroppedColumn } from './pipeline/fitMoments';
 import { resolveOptions } from './pipeline/options';
-import { secondPass } from './pipeline/secondPass';
 import type { CrossValidator, ScoreBatch } from './pipeline/secondPass';
+import type { RangeScanner } from './parallel/rangeScanner';
+import { ParallelFallback, parallelPasses, singleThreadPasses } from './parallel/rowPasses';
+import type { RowPasses } from './parallel/rowPasses';
 
 export { resolveOptions } from './pipeline/options';
 export type { ScoreBatch } from './pipeline/secondPass';
@@ -58,6 +60,11 @@ export interface AnalysisControl extends RunControl {
   provisionalBytes?: number;
   /** Receives the discriminant scores of every data row, in file order, during pass 2. */
   onScores?: (batch: ScoreBatch) => void;
+  /**
+   * Runs the row passes of splittable text on several workers (src/node/parallelScan.ts on Node);
+   * the report is the same as without it (parallel/rowPasses.ts). Not used for the provisional answer.
+   */
+  scanner?: RangeScanner;
 }
 
 /** Features whose values the plot sample keeps: the top ones by univariate F. */
@@ -130,6 +137,17 @@ function provisionalRowLimit(inspection: TableInspection, size: number, provisio
 }
 
 export async function analyze(source: ByteSource, partial?: Partial<FitOptions>, control?: AnalysisControl): Promise<AnalysisResult> {
+  if (!control?.scanner) return analyzeWith(singleThreadPasses, source, partial, control);
+  try {
+    return await analyzeWith(parallelPasses(control.scanner), source, partial, control);
+  } catch (error) {
+    // What a parallel scan cannot give exactly (e.g. a reader error's line) comes from one thread.
+    if (error instanceof ParallelFallback) return analyzeWith(singleThreadPasses, source, partial, control);
+    throw error;
+  }
+}
+
+async function analyzeWith(passes: RowPasses, source: ByteSource, partial?: Partial<FitOptions>, control?: AnalysisControl): Promise<AnalysisResult> {
   const started = now();
   const options = resolveOptions(partial);
   throwIfAborted(control?.signal);
@@ -154,7 +172,7 @@ export async function analyze(source: ByteSource, partial?: Partial<FitOptions>,
     return count === undefined ? undefined : { count, seed: options.seed };
   };
   const runPass1 = (columns: typeof features, folds = foldsFor(columns.length), moments = true): Promise<FirstPassResult> =>
-    firstPass(
+    passes.first(
       source,
       inspection,
       { label: roles.label.index, features: columns.map((c) => c.index), featureNames: columns.map((c) => c.name), ...(folds ? { folds } : {}), moments },
@@ -193,14 +211,15 @@ export async function analyze(source: ByteSource, partial?: Partial<FitOptions>,
   if (cv.method === 'none' && cv.reason) findings.push(cvSkippedFinding(cv.reason));
   let crossValidator: CrossValidator = { kind: 'none' };
   if (cv.method === 'loo') {
-    crossValidator = { kind: 'loo', model: createLeaveOneOut(solution, moments) };
+    crossValidator = { kind: 'loo', model: createLeaveOneOut(solution, moments), trainedOn: { moments } };
   } else if (cv.method !== 'none') {
     let folds = pass1.folds;
     if (!folds || folds.kFolds !== cv.folds) {
       // `auto` chose k-fold although the row estimate said leave-one-out: collect the folds now.
       folds = (await runPass1(features, { count: cv.folds, seed: options.seed }, false)).folds;
     }
-    crossValidator = { kind: 'kfold', classifiers: foldClassifiers(moments, folds!, { solver: options.solver, priors: options.priors }, solution), seed: options.seed };
+    const foldOptions = { solver: options.solver, priors: options.priors };
+    crossValidator = { kind: 'kfold', classifiers: foldClassifiers(moments, folds!, foldOptions, solution), seed: options.seed, trainedOn: { moments, folds: folds!, options: foldOptions } };
   }
   const solved = now();
 
@@ -211,7 +230,7 @@ export async function analyze(source: ByteSource, partial?: Partial<FitOptions>,
     .slice(0, PLOT_TOP_FEATURES)
     .map((t) => t.j);
   const classCounts = fit.report.classes.map((c) => c.count);
-  const pass2 = await secondPass(
+  const pass2 = await passes.second(
     {
       source,
       inspection,

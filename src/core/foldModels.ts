@@ -38,8 +38,22 @@ interface FoldState {
   buffered: number;
 }
 
+/** One fold's rows: their pooled within-class scatter (d × d full) and per label count and mean. */
+export interface FoldPart {
+  withinScatter: Float64Array;
+  counts: Map<string, number>;
+  means: Map<string, Float64Array>;
+}
+
+/** What foldClassifiers needs: a FoldMomentsAccumulator, or fold parts merged from a parallel scan. */
+export interface FoldParts {
+  readonly features: string[];
+  readonly kFolds: number;
+  parts(): FoldPart[];
+}
+
 /** Per fold: the pooled within-class scatter and per-class counts and means (see the module comment). */
-export class FoldMomentsAccumulator {
+export class FoldMomentsAccumulator implements FoldParts {
   private readonly d: number;
   private readonly folds: FoldState[];
   private readonly labels: string[] = [];
@@ -172,7 +186,7 @@ export class FoldMomentsAccumulator {
   }
 
   /** The fold parts: per fold the pooled within-class scatter (d × d full) and per label count and mean. */
-  parts(): { withinScatter: Float64Array; counts: Map<string, number>; means: Map<string, Float64Array> }[] {
+  parts(): FoldPart[] {
     const d = this.d;
     return this.folds.map((fold) => {
       this.flush(fold);
@@ -198,7 +212,7 @@ export class FoldMomentsAccumulator {
  * returned index are in the full solution's class order (a class absent from a training set gets
  * posterior 0). `full` is the fit on all rows (solved here when not given).
  */
-export function foldClassifiers(total: Moments, folds: FoldMomentsAccumulator, options: LdaOptions, full?: LdaSolution): Classifier[] {
+export function foldClassifiers(total: Moments, folds: FoldParts, options: LdaOptions, full?: LdaSolution): Classifier[] {
   const solution = full ?? solveLda(total, options);
   const fixed: LdaOptions =
     solution.solver === 'shrinkage'

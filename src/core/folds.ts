@@ -52,6 +52,38 @@ export class FoldAssigner {
 
   /** The fold (0..kFolds−1) of the next row of the class first seen a-th; call once per row, in file order. */
   foldOf(classFirstAppearanceIndex: number): number {
+    const stream = this.stream(classFirstAppearanceIndex);
+    const k = this.kFolds;
+    const j = stream.rows;
+    if (j % k === 0) this.drawPermutation(stream);
+    stream.rows = j + 1;
+    return stream.permutation[j % k];
+  }
+
+  /**
+   * Moves the class's stream on by `rows` rows as if foldOf had been called that many times, in
+   * O(log rows): a parallel scan of a later part of the file starts its assigner here, knowing
+   * how many rows of each class came before. Each block draws kFolds − 1 numbers, and n draws
+   * multiply the state by 48271ⁿ mod (2³¹ − 1).
+   */
+  skip(classFirstAppearanceIndex: number, rows: number): void {
+    if (!Number.isSafeInteger(rows) || rows < 0) throw new RangeError(`cannot skip ${rows} rows`);
+    const stream = this.stream(classFirstAppearanceIndex);
+    const k = this.kFolds;
+    const from = stream.rows;
+    const to = from + rows;
+    const drawn = Math.ceil(from / k); // permutations drawn so far
+    const block = Math.floor(to / k);
+    if (to % k === 0) {
+      stream.state = advance(stream.state, (to / k - drawn) * (k - 1));
+    } else if (!(from % k !== 0 && block === Math.floor(from / k))) {
+      stream.state = advance(stream.state, (block - drawn) * (k - 1));
+      this.drawPermutation(stream);
+    }
+    stream.rows = to;
+  }
+
+  private stream(classFirstAppearanceIndex: number): ClassStream {
     let stream = this.streams[classFirstAppearanceIndex];
     if (stream === undefined) {
       if (!Number.isInteger(classFirstAppearanceIndex) || classFirstAppearanceIndex < 0) {
@@ -60,20 +92,32 @@ export class FoldAssigner {
       stream = { state: foldSeed(this.seed, classFirstAppearanceIndex), rows: 0, permutation: new Int32Array(this.kFolds) };
       this.streams[classFirstAppearanceIndex] = stream;
     }
-    const k = this.kFolds;
-    const j = stream.rows;
-    if (j % k === 0) {
-      const perm = stream.permutation;
-      for (let i = 0; i < k; i++) perm[i] = i;
-      for (let i = k - 1; i >= 1; i--) {
-        stream.state = (MULTIPLIER * stream.state) % MODULUS;
-        const r = stream.state % (i + 1);
-        const t = perm[i];
-        perm[i] = perm[r];
-        perm[r] = t;
-      }
-    }
-    stream.rows = j + 1;
-    return stream.permutation[j % k];
+    return stream;
   }
+
+  /** The permutation of a new block: Fisher–Yates from the identity, kFolds − 1 draws. */
+  private drawPermutation(stream: ClassStream): void {
+    const perm = stream.permutation;
+    const k = this.kFolds;
+    for (let i = 0; i < k; i++) perm[i] = i;
+    for (let i = k - 1; i >= 1; i--) {
+      stream.state = (MULTIPLIER * stream.state) % MODULUS;
+      const r = stream.state % (i + 1);
+      const t = perm[i];
+      perm[i] = perm[r];
+      perm[r] = t;
+    }
+  }
+}
+
+/** state · 48271^draws mod (2³¹ − 1): the generator's state after `draws` more draws. */
+function advance(state: number, draws: number): number {
+  const m = BigInt(MODULUS);
+  let result = BigInt(state);
+  let base = BigInt(MULTIPLIER);
+  for (let e = draws; e > 0; e = Math.floor(e / 2)) {
+    if (e % 2 === 1) result = (result * base) % m;
+    base = (base * base) % m;
+  }
+  return Number(result);
 }

@@ -51,11 +51,13 @@ export function allocatePlotQuota(counts: readonly number[], budget: number): nu
 export class PlotSampler {
   private readonly seen: number[];
 
+  /** `start`: used rows of each class before the first row given (a scan of a later part of the file). */
   constructor(
     private readonly counts: readonly number[],
     readonly quota: readonly number[],
+    start?: readonly number[],
   ) {
-    this.seen = counts.map(() => 0);
+    this.seen = counts.map((_, c) => start?.[c] ?? 0);
   }
 
   /** Call once per used row of class `c`, in file order. */

@@ -62,15 +62,49 @@ class HashSlots {
   }
 }
 
+const bits = new Float64Array(1);
+const words = new Uint32Array(bits.buffer);
+
+/**
+ * Two independent 32-bit FNV-1a-style mixes over the 32-bit words of a row's values, into
+ * `out[0]`, `out[1]`; the label joins in rowKey, so a parallel scan can hash before it knows
+ * the label's number in the whole file.
+ */
+export function rowValueHash(values: Float64Array, offset: number, d: number, out: Uint32Array): void {
+  let h1 = 0x811c9dc5;
+  let h2 = 0x01000193;
+  for (let j = 0; j < d; j++) {
+    bits[0] = values[offset + j]! + 0;
+    for (let w = 0; w < 2; w++) {
+      const word = words[w]!;
+      h1 = Math.imul(h1 ^ word, 0x01000193) >>> 0;
+      h2 = Math.imul(h2 ^ word, 0x5bd1e995) >>> 0;
+      h2 ^= h2 >>> 15;
+    }
+  }
+  out[0] = h1;
+  out[1] = h2;
+}
+
+/** The 53-bit key of a row: its value hash with its label id mixed in. */
+export function rowKey(valueHash1: number, valueHash2: number, label: number): number {
+  let h1 = Math.imul(valueHash1 ^ label, 0x01000193) >>> 0;
+  let h2 = Math.imul(valueHash2 ^ Math.imul(label, 0x9e3779b1), 0x5bd1e995) >>> 0;
+  h2 ^= h2 >>> 15;
+  h1 ^= h1 >>> 16;
+  h1 = Math.imul(h1, 0x85ebca6b) >>> 0;
+  h1 ^= h1 >>> 13;
+  return (h1 >>> 0) * 2 ** 21 + (h2 >>> 11);
+}
+
 export class DuplicateRows {
   private readonly seen = new HashSlots();
   private firstRows = new Int32Array(1024);
   private firstLines = new Int32Array(1024);
-  private readonly bits = new Float64Array(1);
-  private readonly words = new Uint32Array(this.bits.buffer);
   count = 0;
   checked = 0;
   readonly examples: DuplicateExample[] = [];
+  private readonly hash = new Uint32Array(2);
 
   constructor(private readonly capacity = DUPLICATE_CHECK_CAPACITY) {}
 
@@ -85,22 +119,13 @@ export class DuplicateRows {
    */
   add(label: number, values: Float64Array, offset: number, d: number, row: number, line: number | undefined): void {
     if (!this.open) return;
-    // Two independent 32-bit FNV-1a-style mixes over the 32-bit words, combined into 53 bits.
-    let h1 = (0x811c9dc5 ^ label) >>> 0;
-    let h2 = (0x01000193 ^ Math.imul(label, 0x9e3779b1)) >>> 0;
-    for (let j = 0; j < d; j++) {
-      this.bits[0] = values[offset + j]! + 0;
-      for (let w = 0; w < 2; w++) {
-        const word = this.words[w]!;
-        h1 = Math.imul(h1 ^ word, 0x01000193) >>> 0;
-        h2 = Math.imul(h2 ^ word, 0x5bd1e995) >>> 0;
-        h2 ^= h2 >>> 15;
-      }
-    }
-    h1 ^= h1 >>> 16;
-    h1 = Math.imul(h1, 0x85ebca6b) >>> 0;
-    h1 ^= h1 >>> 13;
-    const key = (h1 >>> 0) * 2 ** 21 + (h2 >>> 11);
+    rowValueHash(values, offset, d, this.hash);
+    this.addKey(rowKey(this.hash[0]!, this.hash[1]!, label), row, line);
+  }
+
+  /** One used row by its key (rowKey), e.g. replayed from a parallel scan's record. Call in file order. */
+  addKey(key: number, row: number, line: number | undefined): void {
+    if (!this.open) return;
     const slot = this.seen.get(key);
     if (slot >= 0) {
       this.count++;

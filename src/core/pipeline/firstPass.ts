@@ -13,10 +13,11 @@
  * replays the same calls, so no fold is stored per row.
  */
 import { FoldMomentsAccumulator } from '../classify';
+import type { FoldParts } from '../foldModels';
 import { FoldAssigner } from '../folds';
 import type { Moments } from '../moments';
 import { MomentsAccumulator } from '../moments';
-import type { CellExample, ScanSummary, TableInspection } from '../read/types';
+import type { ByteRange, CellExample, ScanSummary, TableInspection } from '../read/types';
 import { scanTable } from '../read/index';
 import type { ByteSource, RunControl } from '../source';
 import { DuplicateRows } from './duplicateRows';
@@ -32,11 +33,26 @@ export interface FirstPassPlan {
   folds?: { count: number; seed: number };
   /** Whether to accumulate moments (false when only the fold parts are wanted again). */
   moments: boolean;
+  /** Text: scan only the rows that start in this byte range (one share of a parallel scan). */
+  range?: ByteRange;
+  /**
+   * Accumulators that outlive the pass (a parallel worker's, over all its ranges): rows go into
+   * them, and the result then holds `moments: null` (the caller reads them at the end).
+   */
+  into?: { moments?: MomentsAccumulator; folds?: FoldMomentsAccumulator };
+  /**
+   * For a range that is not the start of the file: each class's order of first appearance among
+   * the used rows of the whole file (by label) and its used rows before the range, so the folds
+   * continue where the rows before left off.
+   */
+  foldStart?: { order: ReadonlyMap<string, number>; rowsBefore: readonly number[] };
+  /** Receives the rows for the duplicate check instead of the pass's own DuplicateRows. */
+  duplicateSink?: Pick<DuplicateRows, 'add'>;
 }
 
 export interface FirstPassResult {
   moments: Moments | null;
-  folds: FoldMomentsAccumulator | null;
+  folds: FoldParts | null;
   /** The scan's label dictionary, in order of first appearance in the file (all rows). */
   labels: string[];
   /** Label ids (scan dictionary) in order of first appearance among the used rows. */
@@ -71,10 +87,13 @@ export async function firstPass(
   rowLimit: number | null = null,
 ): Promise<FirstPassResult> {
   const d = plan.features.length;
-  const accumulator = plan.moments ? new MomentsAccumulator(plan.featureNames) : null;
-  const folds = plan.folds ? new FoldMomentsAccumulator(plan.featureNames, plan.folds.count) : null;
+  const accumulator = plan.moments ? (plan.into?.moments ?? new MomentsAccumulator(plan.featureNames)) : null;
+  const folds = plan.folds ? (plan.into?.folds ?? new FoldMomentsAccumulator(plan.featureNames, plan.folds.count)) : null;
   const assigner = plan.folds ? new FoldAssigner(plan.folds.count, plan.folds.seed) : null;
+  if (assigner && plan.foldStart) plan.foldStart.rowsBefore.forEach((rows, order) => assigner.skip(order, rows));
+  const foldOrderOf: number[] = []; // scan label id → order of first appearance in the whole file (with foldStart)
   const duplicates = new DuplicateRows();
+  const duplicateSink = plan.duplicateSink ?? duplicates;
   const majority = new MajorityVote(d);
   const nanCells = new Float64Array(d);
   const positiveInfinity = new Float64Array(d);
@@ -108,6 +127,7 @@ export async function firstPass(
       inspection,
       plan: { label: plan.label, features: plan.features },
       control: pass.control,
+      ...(plan.range ? { range: plan.range } : {}),
       onBatch: (batch, dictionary) => {
         labels = dictionary;
         const { values } = batch;
@@ -155,10 +175,20 @@ export async function firstPass(
           const at = blockRows * d;
           for (let j = 0; j < d; j++) blockValues[at + j] = values[offset + j]!;
           blockClasses[blockRows] = label;
-          if (assigner) blockFolds[blockRows] = assigner.foldOf(order);
+          if (assigner) {
+            if (plan.foldStart) {
+              let whole = foldOrderOf[label];
+              if (whole === undefined) {
+                whole = plan.foldStart.order.get(labels[label]!) ?? -1;
+                foldOrderOf[label] = whole;
+              }
+              order = whole;
+            }
+            blockFolds[blockRows] = assigner.foldOf(order);
+          }
           blockRows++;
           if (blockRows === BLOCK_ROWS) flush();
-          duplicates.add(label, values, offset, d, row, batch.lines?.[i]);
+          duplicateSink.add(label, values, offset, d, row, batch.lines?.[i]);
           majority.vote(values, offset);
         }
       },
@@ -168,7 +198,7 @@ export async function firstPass(
   // Rows were left out only when the reader had more than the limit.
   const cut = rowLimit !== null && (pass.stoppedEarly || (summary !== undefined && summary.rows > rowLimit)) ? rowLimit : null;
   return {
-    moments: accumulator ? accumulator.result() : null,
+    moments: accumulator && !plan.into?.moments ? accumulator.result() : null,
     folds,
     labels: [...labels],
     appearance,

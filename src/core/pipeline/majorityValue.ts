@@ -7,7 +7,7 @@
  */
 export class MajorityVote {
   readonly candidates: Float64Array;
-  private readonly votes: Float64Array;
+  readonly votes: Float64Array;
 
   constructor(d: number) {
     this.candidates = new Float64Array(d);
@@ -25,6 +25,26 @@ export class MajorityVote {
       } else if (this.candidates[j] === v) this.votes[j]! += 1;
       else this.votes[j]! -= 1;
     }
+  }
+}
+
+/**
+ * Combines the votes of two parts of the rows (a parallel scan): equal candidates add their votes,
+ * different ones cancel, the larger keeping the difference. A value filling more than half of all
+ * the rows still wins, so the near-constant rule sees the same value whatever the split.
+ */
+export function mergeMajorityVotes(into: MajorityVote, candidates: Float64Array, votes: Float64Array): void {
+  for (let j = 0; j < into.candidates.length; j++) {
+    const v = votes[j]!;
+    if (v === 0) continue;
+    const mine = into.votes[j]!;
+    if (mine === 0 || into.candidates[j] === candidates[j]) {
+      into.candidates[j] = candidates[j]!;
+      into.votes[j] = mine + v;
+    } else if (v > mine) {
+      into.candidates[j] = candidates[j]!;
+      into.votes[j] = v - mine;
+    } else into.votes[j] = mine - v;
   }
 }
 

@@ -8,14 +8,16 @@
  * A misclassified row's `posterior` is the posterior probability of the class it was predicted as.
  */
 import type { Classifier } from '../classify';
+import type { FoldParts } from '../foldModels';
+import type { Moments } from '../moments';
 import { FoldAssigner } from '../folds';
-import type { LdaSolution } from '../lda';
+import type { LdaOptions, LdaSolution } from '../lda';
 import { scoreRow } from '../lda';
 import type { PcaSolution } from '../pca';
 import { pcaScoreRow } from '../pca';
 import { PlotSampler } from '../plotSample';
 import { scanTable } from '../read/index';
-import type { TableInspection } from '../read/types';
+import type { ByteRange, TableInspection } from '../read/types';
 import type { ByteSource, RunControl } from '../source';
 import type { FitReport } from '../types';
 import { CandidateCount } from './majorityValue';
@@ -30,9 +32,13 @@ export interface ScoreBatch {
   scores: Float64Array;
 }
 
+/**
+ * The cross-validation models; `trainedOn` is what they were built from, so that a parallel pass
+ * can rebuild the same models in each worker (models are functions and do not cross threads).
+ */
 export type CrossValidator =
-  | { kind: 'loo'; model: { predict(x: Float64Array, trueClass: number, out: Float64Array): number } }
-  | { kind: 'kfold'; classifiers: Classifier[]; seed: number }
+  | { kind: 'loo'; model: { predict(x: Float64Array, trueClass: number, out: Float64Array): number }; trainedOn?: { moments: Moments } }
+  | { kind: 'kfold'; classifiers: Classifier[]; seed: number; trainedOn?: { moments: Moments; folds: FoldParts; options: LdaOptions } }
   | { kind: 'none' };
 
 export interface SecondPassInput {
@@ -56,6 +62,15 @@ export interface SecondPassInput {
   /** Stop after this many data rows (the provisional cut of pass 1). */
   rowLimit: number | null;
   onScores?: (batch: ScoreBatch) => void;
+  /** Text: only the rows that start in this byte range (one share of a parallel scan). */
+  range?: ByteRange;
+  /**
+   * For a range that is not the start of the file: the used rows before it, per class in the
+   * solution's order (plot sample) and per order of first appearance (folds).
+   */
+  start?: { classRows: readonly number[]; foldRows?: readonly number[] };
+  /** The labels in order of first appearance among used rows; replaces `appearance` when the scan's label ids are its own (a range). */
+  appearanceLabels?: readonly string[];
 }
 
 export interface SecondPassResult {
@@ -79,8 +94,10 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
   const plotAxes = Math.min(k, 3);
   const classOfLabel = new Map(solution.labels.map((label, c) => [label, c]));
   const appearanceOrder = new Map(input.appearance.map((id, order) => [id, order]));
+  const labelOrder = input.appearanceLabels ? new Map(input.appearanceLabels.map((label, order) => [label, order])) : null;
   const assigner = crossValidator.kind === 'kfold' ? new FoldAssigner(crossValidator.classifiers.length, crossValidator.seed) : null;
-  const sampler = new PlotSampler(input.classCounts, input.plotQuota);
+  if (assigner && input.start?.foldRows) input.start.foldRows.forEach((rows, order) => assigner.skip(order, rows));
+  const sampler = new PlotSampler(input.classCounts, input.plotQuota, input.start?.classRows);
   const majority = new CandidateCount(input.majorityCandidates);
 
   const confusion = square(K);
@@ -96,6 +113,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
   const pc = new Float64Array(2);
   let scores = new Float64Array(0);
   let classOfId: number[] = [];
+  const orderOfId: number[] = [];
 
   const pass = new PassControl('rows', control);
   await pass.run(() =>
@@ -104,8 +122,13 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
       inspection: input.inspection,
       plan: { label: input.label, features: input.features },
       control: pass.control,
+      ...(input.range ? { range: input.range } : {}),
       onBatch: (batch, labels) => {
         while (classOfId.length < labels.length) classOfId.push(classOfLabel.get(labels[classOfId.length]!) ?? -1);
+        while (orderOfId.length < labels.length) {
+          const id = orderOfId.length;
+          orderOfId.push((labelOrder ? labelOrder.get(labels[id]!) : appearanceOrder.get(id)) ?? -1);
+        }
         let rows = batch.rows;
         if (input.rowLimit !== null) rows = Math.max(0, Math.min(rows, input.rowLimit - batch.firstRow));
         if (input.onScores && scores.length < rows * k) scores = new Float64Array(batch.rows * k);
@@ -137,7 +160,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
             judged = crossValidator.model.predict(x, truth, posterior);
             judgedPosterior = posterior[judged]!;
           } else if (crossValidator.kind === 'kfold') {
-            const fold = assigner!.foldOf(appearanceOrder.get(id)!);
+            const fold = assigner!.foldOf(orderOfId[id]!);
             judged = crossValidator.classifiers[fold]!.predict(x, posterior);
             judgedPosterior = posterior[judged]!;
           }

@@ -71,7 +71,7 @@ export async function rowsBefore(
 }
 
 /** The first row start at or after `start`: `start` itself when a line feed precedes it. */
-async function alignToRowStart(source: ByteSource, start: number): Promise<number> {
+export async function alignToRowStart(source: ByteSource, start: number): Promise<number> {
   if (start <= 0) return 0;
   let base = start - 1;
   while (base < source.size) {

@@ -138,7 +138,12 @@ class DelimitedTextScanner {
 
   async run(): Promise<ScanSummary> {
     const range = this.request.range;
-    if (range && range.start > 0) {
+    if (range && range.start > 0 && range.origin) {
+      // The caller aligned the range to a row start and knows its line and row.
+      this.line = range.origin.line;
+      this.row = range.origin.row;
+      if (range.start >= this.stopAt) return this.summary();
+    } else if (range && range.start > 0) {
       if (range.start >= this.stopAt) return this.summary();
       const before = await rowsBefore(this.request.source, range.start, this.request.inspection, this.comment, this.request.control);
       this.readOffset = before.offset;
@@ -480,7 +485,7 @@ class DelimitedTextScanner {
   }
 
   private summary(): ScanSummary {
-    return this.tally.summary(this.dictionary.labels, this.request.inspection.notes ?? []);
+    return { ...this.tally.summary(this.dictionary.labels, this.request.inspection.notes ?? []), endLine: this.line };
   }
 }
 

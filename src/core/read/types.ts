@@ -111,12 +111,20 @@ export interface ScanSummary {
   raggedExamples: CellExample[];
   /** Findings the reader itself makes (Parquet INT64 precision loss, nested columns ignored, …). */
   notes: ReaderNote[];
+  /** Text formats: the 1-based line where the scan stopped (the line of the next row after the range). */
+  endLine?: number;
 }
 
 /** A byte range of a text source for a parallel scan; the reader aligns it to row starts. */
 export interface ByteRange {
   start: number;
   end: number;
+  /**
+   * The 1-based line and 0-based data row at `start`, when the caller knows them and `start` is a
+   * row start (just after a line feed): the reader then skips counting the rows before the range.
+   * A caller that numbers rows relative to the range passes { line: 1, row: 0 }.
+   */
+  origin?: { line: number; row: number };
 }
 
 export interface ScanRequest {

@@ -1,0 +1,186 @@
+/**
+ * What a worker does with a job of the parallel passes (rangeScanner.ts): the same firstPass and
+ * secondPass as the single-threaded analysis, each run over one byte range at a time, with the
+ * accumulators kept across the worker's ranges. Pure: the source comes from the caller.
+ */
+import { createClassifier, createLeaveOneOut, foldClassifiers } from '../classify';
+import { FoldMomentsAccumulator } from '../foldModels';
+import { MomentsAccumulator } from '../moments';
+import { firstPass } from '../pipeline/firstPass';
+import { rowValueHash } from '../pipeline/duplicateRows';
+import { secondPass } from '../pipeline/secondPass';
+import type { CrossValidator, ScoreBatch } from '../pipeline/secondPass';
+import type { ByteSource, RunControl } from '../source';
+import type {
+  FirstPassJob,
+  FirstRangePart,
+  FirstWorkerResult,
+  FoldPassJob,
+  FoldWorkerResult,
+  PassJob,
+  RangeTask,
+  SecondPassJob,
+  SecondRangePart,
+} from './rangeScanner';
+
+export interface PassJobRunner {
+  scan(task: RangeTask, control?: RunControl): Promise<unknown>;
+  finish(): unknown;
+}
+
+export function openPassJob(source: ByteSource, job: PassJob): PassJobRunner {
+  if (job.kind === 'first') return firstJob(source, job);
+  if (job.kind === 'folds') return foldJob(source, job);
+  return secondJob(source, job);
+}
+
+/**
+ * Counts the used rows of each label (firstPass hands every used row to its duplicate sink) and
+ * records the value hashes of the first `budget` of them, for the duplicate check that the
+ * coordinator replays in file order.
+ */
+class UsedRowRecorder {
+  readonly usedById: number[] = [];
+  private count = 0;
+  private readonly hashes: Uint32Array;
+  private readonly labels: Int32Array;
+  private readonly rows: Int32Array;
+  private readonly lines: Int32Array;
+  private readonly hash = new Uint32Array(2);
+
+  constructor(private readonly budget: number) {
+    this.hashes = new Uint32Array(2 * budget);
+    this.labels = new Int32Array(budget);
+    this.rows = new Int32Array(budget);
+    this.lines = new Int32Array(budget);
+  }
+
+  add(label: number, values: Float64Array, offset: number, d: number, row: number, line: number | undefined): void {
+    while (this.usedById.length <= label) this.usedById.push(0);
+    this.usedById[label]! += 1;
+    const n = this.count;
+    if (n >= this.budget) return;
+    rowValueHash(values, offset, d, this.hash);
+    this.hashes[2 * n] = this.hash[0]!;
+    this.hashes[2 * n + 1] = this.hash[1]!;
+    this.labels[n] = label;
+    this.rows[n] = row;
+    this.lines[n] = line ?? 0;
+    this.count = n + 1;
+  }
+
+  record(): FirstRangePart['duplicates'] {
+    const n = this.count;
+    return { hashes: this.hashes.slice(0, 2 * n), labels: this.labels.slice(0, n), rows: this.rows.slice(0, n), lines: this.lines.slice(0, n) };
+  }
+}
+
+function firstJob(source: ByteSource, job: FirstPassJob): PassJobRunner {
+  const moments = new MomentsAccumulator(job.columns.featureNames);
+  return {
+    async scan(task, control): Promise<FirstRangePart> {
+      const recorder = new UsedRowRecorder(task.duplicateBudget ?? 0);
+      const pass = await firstPass(source, job.inspection, { ...job.columns, moments: true, range: task.range, into: { moments }, duplicateSink: recorder }, control);
+      return {
+        labels: pass.labels,
+        appearance: pass.appearance.map((id) => pass.labels[id]!),
+        usedByClass: pass.appearance.map((id) => recorder.usedById[id] ?? 0),
+        rows: pass.rows,
+        used: pass.used,
+        droppedMissing: pass.droppedMissing,
+        droppedNonFinite: pass.droppedNonFinite,
+        labelMissing: pass.labelMissing,
+        nanCells: pass.nanCells,
+        positiveInfinity: pass.positiveInfinity,
+        negativeInfinity: pass.negativeInfinity,
+        summary: pass.summary!,
+        majority: { candidates: pass.majority.candidates, votes: pass.majority.votes },
+        duplicates: recorder.record(),
+      };
+    },
+    finish(): FirstWorkerResult {
+      return { moments: moments.result() };
+    },
+  };
+}
+
+function foldJob(source: ByteSource, job: FoldPassJob): PassJobRunner {
+  const folds = new FoldMomentsAccumulator(job.columns.featureNames, job.folds.count);
+  const order = new Map(job.appearance.map((label, index) => [label, index]));
+  const ignore = { add: (): void => undefined };
+  return {
+    async scan(task, control): Promise<Record<string, never>> {
+      await firstPass(
+        source,
+        job.inspection,
+        { ...job.columns, moments: false, folds: job.folds, range: task.range, into: { folds }, foldStart: { order, rowsBefore: task.foldRows ?? [] }, duplicateSink: ignore },
+        control,
+      );
+      return {};
+    },
+    finish(): FoldWorkerResult {
+      return { folds: folds.parts() };
+    },
+  };
+}
+
+/** The cross-validator the analysis built, rebuilt from the same moments (so the same predictions). */
+function crossValidatorOf(job: SecondPassJob): CrossValidator {
+  const model = job.crossValidation;
+  if (model.kind === 'loo') return { kind: 'loo', model: createLeaveOneOut(job.solution, model.moments) };
+  if (model.kind === 'kfold') {
+    const folds = { features: model.features, kFolds: model.folds.length, parts: () => model.folds };
+    return { kind: 'kfold', classifiers: foldClassifiers(model.moments, folds, model.options, job.solution), seed: model.seed };
+  }
+  return { kind: 'none' };
+}
+
+function secondJob(source: ByteSource, job: SecondPassJob): PassJobRunner {
+  const classifier = createClassifier(job.solution);
+  const crossValidator = crossValidatorOf(job);
+  return {
+    async scan(task, control): Promise<SecondRangePart> {
+      let scores: SecondRangePart['scores'] | undefined;
+      const onScores = (batch: ScoreBatch): void => {
+        if (!scores) scores = { firstRow: batch.firstRow, rows: 0, k: batch.k, values: new Float64Array(Math.max(1, 4096 * batch.k)) };
+        const needed = (scores.rows + batch.rows) * batch.k;
+        if (scores.values.length < needed) {
+          const grown = new Float64Array(Math.max(needed, 2 * scores.values.length));
+          grown.set(scores.values.subarray(0, scores.rows * batch.k));
+          scores.values = grown;
+        }
+        scores.values.set(batch.scores.subarray(0, batch.rows * batch.k), scores.rows * batch.k);
+        scores.rows += batch.rows;
+      };
+      const result = await secondPass(
+        {
+          source,
+          inspection: job.inspection,
+          label: job.label,
+          features: job.features,
+          solution: job.solution,
+          pca: job.pca,
+          classifier,
+          crossValidator,
+          appearance: [],
+          appearanceLabels: job.appearance,
+          classCounts: job.classCounts,
+          plotQuota: job.plotQuota,
+          topFeatures: job.topFeatures,
+          majorityCandidates: job.majorityCandidates,
+          misclassifiedLimit: job.misclassifiedLimit,
+          rowLimit: null,
+          range: task.range,
+          start: { classRows: task.classRows ?? [], ...(task.foldRows ? { foldRows: task.foldRows } : {}) },
+          ...(job.scores ? { onScores } : {}),
+        },
+        control,
+      );
+      if (scores) scores.values = scores.values.slice(0, scores.rows * scores.k);
+      return { result, ...(scores ? { scores } : {}) };
+    },
+    finish(): null {
+      return null;
+    },
+  };
+}

@@ -1,0 +1,232 @@
+/**
+ * The row passes of an analysis, in one thread (firstPass, secondPass) or spread over the workers
+ * of a RangeScanner. The parallel version splits splittable text at row starts into ranges —
+ * several per worker, so a worker slowed by other load does not hold up the rest — and runs:
+ *
+ *  pass 1   each range's cell checks and used-row counts; each worker's moments over its ranges.
+ *           Rows are numbered relative to each range and placed once all ranges are in.
+ *  folds    (k-fold cross-validation only) each range's fold parts: a class's fold sequence
+ *           depends on how many of its rows came before, which pass 1 has now told, so the
+ *           folds take one more pass rather than a pass-1 range waiting for the ranges before it.
+ *  pass 2   predictions, cross-validation, plot sample and scores, each range started at its
+ *           exact row, line and per-class position.
+ *
+ * The report equals the single-thread report: counts exactly, moments and what follows from them
+ * to rounding (mergeParts.ts). Whatever the parallel scan cannot reproduce exactly — a reader
+ * error (its line would be relative to the range), skipped ragged rows — is left to the single
+ * thread: the passes throw ParallelFallback and the analysis starts over in one thread.
+ */
+import { DataError } from '../errors';
+import type { FoldPart, FoldParts } from '../foldModels';
+import { firstPass } from '../pipeline/firstPass';
+import type { FirstPassPlan, FirstPassResult } from '../pipeline/firstPass';
+import { DUPLICATE_CHECK_CAPACITY } from '../pipeline/duplicateRows';
+import { secondPass } from '../pipeline/secondPass';
+import type { SecondPassInput, SecondPassResult } from '../pipeline/secondPass';
+import { alignToRowStart } from '../read/textRange';
+import type { ByteRange, TableInspection } from '../read/types';
+import type { ByteSource, RunControl } from '../source';
+import { mergeFirstParts, mergeSecondParts, type RangeLayout } from './mergeParts';
+import type { CrossValidationModel, FirstRangePart, FirstWorkerResult, FoldWorkerResult, RangeScanner, SecondRangePart } from './rangeScanner';
+
+/** The passes analyze.ts runs, with the signatures of firstPass and secondPass. */
+export interface RowPasses {
+  first(source: ByteSource, inspection: TableInspection, plan: FirstPassPlan, control: RunControl | undefined, rowLimit: number | null): Promise<FirstPassResult>;
+  second(input: SecondPassInput, control: RunControl | undefined): Promise<SecondPassResult>;
+}
+
+export const singleThreadPasses: RowPasses = { first: firstPass, second: secondPass };
+
+/** Thrown by the parallel passes when only a single-thread analysis gives the exact result. */
+export class ParallelFallback extends Error {
+  override readonly name = 'ParallelFallback';
+}
+
+/** Ranges per worker: enough for the fast workers to take over from a slow one. */
+const RANGES_PER_WORKER = 8;
+const MIN_RANGE_BYTES = 4 * 1024 * 1024;
+const MAX_RANGE_BYTES = 64 * 1024 * 1024;
+
+/** Whether a parallel scan of this source can give the single-thread result. */
+export function canScanInParallel(scanner: RangeScanner | undefined, inspection: TableInspection, size: number): scanner is RangeScanner {
+  return scanner !== undefined && scanner.workers > 1 && inspection.format !== 'parquet' && inspection.splittable && size >= scanner.minimumBytes;
+}
+
+/** The source split at row starts into about size / rangeBytes ranges (empty ones dropped). */
+export async function splitAtRowStarts(source: ByteSource, workers: number, preferredBytes?: number): Promise<ByteRange[]> {
+  const size = source.size;
+  const rangeBytes = preferredBytes ?? Math.min(MAX_RANGE_BYTES, Math.max(MIN_RANGE_BYTES, Math.ceil(size / (workers * RANGES_PER_WORKER))));
+  const count = Math.max(1, Math.round(size / rangeBytes));
+  const bounds = [0];
+  for (let i = 1; i < count; i++) {
+    const at = await alignToRowStart(source, Math.floor((i * size) / count));
+    if (at > bounds[bounds.length - 1]! && at < size) bounds.push(at);
+  }
+  bounds.push(size);
+  return bounds.slice(0, -1).map((start, i) => ({ start, end: bounds[i + 1]! }));
+}
+
+/** A worker's DataError or a reader error: leave the file to the single thread, which reports it with its real line. */
+function fallbackOn(error: unknown): never {
+  if (error instanceof DataError) throw new ParallelFallback(`${error.code}: ${error.message}`);
+  throw error;
+}
+
+export function parallelPasses(scanner: RangeScanner): RowPasses {
+  // The layout of the last pass 1, for the fold pass and pass 2 over the same columns.
+  let last: { features: string; layout: RangeLayout; result: FirstPassResult } | null = null;
+  const key = (features: readonly number[]): string => features.join(',');
+
+  async function runFirst(source: ByteSource, inspection: TableInspection, plan: FirstPassPlan, control: RunControl | undefined): Promise<FirstPassResult> {
+    const ranges = await splitAtRowStarts(source, scanner.workers, scanner.rangeBytes);
+    const parts: FirstRangePart[] = new Array(ranges.length);
+    const usedDone: number[] = new Array(ranges.length).fill(-1);
+    const columns = { label: plan.label, features: plan.features, featureNames: plan.featureNames };
+    const task = (index: number) => {
+      // Hash for the duplicate check only the rows the single-thread check could still reach.
+      let before = 0;
+      for (let i = 0; i < index; i++) if (usedDone[i]! > 0) before += usedDone[i]!;
+      const range = ranges[index]!;
+      return {
+        range: index === 0 ? range : { ...range, origin: { line: 1, row: 0 } },
+        duplicateBudget: Math.max(0, DUPLICATE_CHECK_CAPACITY - before),
+      };
+    };
+    const onPart = (index: number, part: unknown): void => {
+      parts[index] = part as FirstRangePart;
+      usedDone[index] = parts[index]!.used;
+    };
+    const results = (await scanner.run({ kind: 'first', inspection, columns }, ranges.length, task, onPart, control).catch(fallbackOn)) as FirstWorkerResult[];
+    if (parts.some((part) => part.summary.raggedRows > 0)) throw new ParallelFallback('ragged rows skipped');
+    const merged = mergeFirstParts(
+      parts,
+      ranges,
+      results.map((r) => r.moments),
+      plan.featureNames,
+    );
+    last = { features: key(plan.features), layout: merged.layout, result: merged.result };
+    return merged.result;
+  }
+
+  async function runFolds(inspection: TableInspection, plan: FirstPassPlan, control: RunControl | undefined, layout: RangeLayout, first: FirstPassResult): Promise<FirstPassResult> {
+    const folds = plan.folds!;
+    const columns = { label: plan.label, features: plan.features, featureNames: plan.featureNames };
+    const task = (index: number) => ({
+      range: layout.ranges[index]!,
+      foldRows: layout.appearance.map((label) => layout.usedBefore[index]!.get(label) ?? 0),
+    });
+    const results = (await scanner
+      .run({ kind: 'folds', inspection, columns, folds, appearance: layout.appearance }, layout.ranges.length, task, () => undefined, control)
+      .catch(fallbackOn)) as FoldWorkerResult[];
+    // Pass 1's other figures are those of the pass before, over the same rows.
+    return { ...first, moments: null, folds: mergeFoldParts(plan.featureNames, folds.count, results.map((r) => r.folds)) };
+  }
+
+  return {
+    async first(source, inspection, plan, control, rowLimit) {
+      if (rowLimit !== null || plan.range || !canScanInParallel(scanner, inspection, source.size)) return firstPass(source, inspection, plan, control, rowLimit);
+      if (!plan.moments) {
+        // Only the folds are wanted: from the layout of pass 1 over the same columns.
+        if (plan.folds && last?.features === key(plan.features)) return runFolds(inspection, plan, control, last.layout, last.result);
+        return firstPass(source, inspection, plan, control, rowLimit);
+      }
+      // Folds are collected after pass 1, when they are known to be needed (see the module comment).
+      return runFirst(source, inspection, plan, control);
+    },
+
+    async second(input, control) {
+      const layout = last?.features === key(input.features) ? last.layout : null;
+      if (!layout || input.rowLimit !== null || input.range) return secondPass(input, control);
+      const crossValidation = crossValidationModel(input);
+      if (!crossValidation) return secondPass(input, control);
+      const classRowsBefore = (index: number): number[] => input.solution.labels.map((label) => layout.usedBefore[index]!.get(label) ?? 0);
+      const foldRowsBefore = (index: number): number[] => layout.appearance.map((label) => layout.usedBefore[index]!.get(label) ?? 0);
+      const parts: SecondRangePart[] = new Array(layout.ranges.length);
+      let emitted = 0;
+      const onPart = (index: number, part: unknown): void => {
+        parts[index] = part as SecondRangePart;
+        // Scores go to the caller in file order, as soon as the ranges before have come in.
+        while (emitted < parts.length && parts[emitted]) {
+          const scores = parts[emitted]!.scores;
+          if (scores && input.onScores && scores.rows > 0) input.onScores({ firstRow: scores.firstRow, rows: scores.rows, k: scores.k, scores: scores.values });
+          delete parts[emitted]!.scores;
+          emitted++;
+        }
+      };
+      await scanner
+        .run(
+          {
+            kind: 'second',
+            inspection: input.inspection,
+            label: input.label,
+            features: input.features,
+            solution: input.solution,
+            pca: input.pca,
+            crossValidation,
+            appearance: layout.appearance,
+            classCounts: [...input.classCounts],
+            plotQuota: [...input.plotQuota],
+            topFeatures: input.topFeatures,
+            majorityCandidates: input.majorityCandidates,
+            misclassifiedLimit: input.misclassifiedLimit,
+            scores: input.onScores !== undefined,
+          },
+          layout.ranges.length,
+          (index) => ({
+            range: layout.ranges[index]!,
+            classRows: classRowsBefore(index),
+            ...(crossValidation.kind === 'kfold' ? { foldRows: foldRowsBefore(index) } : {}),
+          }),
+          onPart,
+          control,
+        )
+        .catch(fallbackOn);
+      return mergeSecondParts(parts, input.misclassifiedLimit);
+    },
+  };
+}
+
+/** The data the cross-validation models were built from, or null when the caller did not say. */
+function crossValidationModel(input: SecondPassInput): CrossValidationModel | null {
+  const cv = input.crossValidator;
+  if (cv.kind === 'none') return { kind: 'none' };
+  if (!cv.trainedOn) return null;
+  if (cv.kind === 'loo') return { kind: 'loo', moments: cv.trainedOn.moments };
+  const { moments, folds, options } = cv.trainedOn;
+  return { kind: 'kfold', moments, features: [...folds.features], folds: folds.parts(), options, seed: cv.seed };
+}
+
+/**
+ * One fold's parts from several workers: counts add, means weight by count, and the pooled
+ * within-class scatter gains Σ_c (n_A n_B / n) δ_c δ_cᵀ per class (Chan et al.'s merge, moments.ts).
+ */
+export function mergeFoldParts(features: string[], kFolds: number, workers: FoldPart[][]): FoldParts {
+  const d = features.length;
+  const merged: FoldPart[] = Array.from({ length: kFolds }, () => ({ withinScatter: new Float64Array(d * d), counts: new Map(), means: new Map() }));
+  for (const parts of workers) {
+    parts.forEach((part, f) => {
+      const into = merged[f]!;
+      for (let k = 0; k < d * d; k++) into.withinScatter[k]! += part.withinScatter[k]!;
+      for (const [label, nB] of part.counts) {
+        const meanB = part.means.get(label)!;
+        const nA = into.counts.get(label) ?? 0;
+        const meanA = into.means.get(label);
+        if (!meanA || nA === 0) {
+          into.counts.set(label, nB);
+          into.means.set(label, Float64Array.from(meanB));
+          continue;
+        }
+        const n = nA + nB;
+        const weight = (nA * nB) / n;
+        const delta = Float64Array.from(meanB, (v, i) => v - meanA[i]!);
+        for (let i = 0; i < d; i++) {
+          const row = i * d;
+          for (let j = 0; j < d; j++) into.withinScatter[row + j]! += weight * delta[i]! * delta[j]!;
+          meanA[i]! += (nB / n) * delta[i]!;
+        }
+        into.counts.set(label, n);
+      }
+    });
+  }
+  return { features: [...features], kFolds, parts: () => merged };
+}
