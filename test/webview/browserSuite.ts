@@ -13,7 +13,7 @@ import { buildPanelBundle, launchChromium, openPanel, removeFolder, REPOSITORY, 
 export const SCREENSHOTS = join(REPOSITORY, 'test-output', 'webview');
 
 export interface PanelBrowser {
-  open(options?: { storedState?: unknown; width?: number; height?: number }): Promise<OpenPanel>;
+  open(options?: { storedState?: unknown; width?: number; height?: number; pixelRatio?: number }): Promise<OpenPanel>;
 }
 
 export function usePanelBrowser(): PanelBrowser {

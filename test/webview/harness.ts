@@ -94,8 +94,8 @@ export interface OpenPanel {
  * the panel was hidden). Posted messages collect in window.__posted, setState calls in window.__state,
  * Content-Security-Policy violations in window.__violations.
  */
-export async function openPanel(browser: Browser, origin: string, options: { storedState?: unknown; width?: number; height?: number } = {}): Promise<OpenPanel> {
-  const page = await browser.newPage({ viewport: { width: options.width ?? 1200, height: options.height ?? 900 } });
+export async function openPanel(browser: Browser, origin: string, options: { storedState?: unknown; width?: number; height?: number; pixelRatio?: number } = {}): Promise<OpenPanel> {
+  const page = await browser.newPage({ viewport: { width: options.width ?? 1200, height: options.height ?? 900 }, deviceScaleFactor: options.pixelRatio ?? 1 });
   const events: PageEvents = { dialogs: [], consoleErrors: [], pageErrors: [] };
   page.on('dialog', (dialog) => {
     events.dialogs.push(dialog.message());

@@ -5,13 +5,17 @@
  * comparison states.
  */
 import assert from 'node:assert/strict';
+import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { verdict } from '../../src/core/format/verdict';
 import type { FitReport } from '../../src/core/types';
 import { CLASS_COLOURS } from '../../webview/palette';
-import { usePanelBrowser } from './browserSuite';
+import { SCREENSHOTS, usePanelBrowser } from './browserSuite';
 import { applyTheme, columnsOf, optionsOf, posted, readFixture, send, showReport } from './harness';
 import { countColours, waitForDrawing } from './pixels';
+
+declare const document: any;
+declare const window: any;
 
 /** A number as the panel prints it (thousands commas, typographic minus, %, exponent) → a float. */
 function parseShown(text: string): number {
@@ -96,6 +100,22 @@ describe('panel rendering', function () {
     const pc1 = `PC1 (${(report.pca.explainedRatio[0] * 100).toFixed(1)}% of variance)`;
     assert.ok(label.includes(ld1), `the plot's text alternative names ${ld1}: ${label}`);
     assert.ok(((await page.getAttribute('figure[data-plot="pc-scatter"] canvas.plot-overlay', 'aria-label')) ?? '').includes(pc1));
+  });
+
+  it('draws at the device pixel ratio, so the points stay sharp on a high-density screen', async () => {
+    const { page } = await panels.open({ pixelRatio: 2 });
+    await applyTheme(page, 'light');
+    await showReport(page, report);
+    const colours = CLASS_COLOURS.slice(0, report.classes.length) as string[];
+    await waitForDrawing(page, 'ld-scatter-1-2', colours);
+    const size = await page.evaluate(() => {
+      const canvas = document.querySelector('figure[data-plot="ld-scatter-1-2"] canvas.plot-canvas');
+      return { backing: canvas.width, css: canvas.getBoundingClientRect().width, ratio: window.devicePixelRatio };
+    });
+    assert.equal(size.ratio, 2);
+    assert.equal(size.backing, 2 * Math.round(size.css));
+    for (const count of await countColours(page, 'ld-scatter-1-2', colours)) assert.ok(count.pixels > 80, `colour ${count.colour}: ${count.pixels} pixels`);
+    await page.screenshot({ path: join(SCREENSHOTS, 'projections-light-2x.png') });
   });
 
   it('lets another pair of discriminants be chosen when there are three or more', async () => {

@@ -5,9 +5,10 @@
  * the test driver would measure the driver) — a load test, not data anyone should read.
  */
 import assert from 'node:assert/strict';
+import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { CLASS_COLOURS } from '../../webview/palette';
-import { usePanelBrowser } from './browserSuite';
+import { SCREENSHOTS, usePanelBrowser } from './browserSuite';
 import { applyTheme, columnsOf, optionsOf, readFixture, send } from './harness';
 import { countColours, waitForDrawing } from './pixels';
 
@@ -26,13 +27,19 @@ async function postGrownReport(page: Page, points: number): Promise<number> {
       const grown = JSON.parse(text);
       const { sample } = grown.report;
       const n = sample.rows.length;
-      const shift = (i: number): number => (((Math.imul(i, 2654435761) >>> 0) / 2 ** 32) - 0.5) * 0.3;
+      // An integer hash of (copy, coordinate) spread to ±0.3: independent offsets per coordinate.
+      const shift = (i: number): number => {
+        let h = Math.imul(i ^ (i >>> 16), 0x45d9f3b);
+        h = Math.imul(h ^ (h >>> 16), 0x45d9f3b);
+        h ^= h >>> 16;
+        return ((h >>> 0) / 2 ** 32 - 0.5) * 0.6;
+      };
       grown.report.sample = {
         total: points,
         rows: Array.from({ length: points }, (_, i) => i),
         classIndex: Array.from({ length: points }, (_, i) => sample.classIndex[i % n]),
-        ld: Array.from({ length: points }, (_, i) => sample.ld[i % n].map((v: number, j: number) => v + shift(i + j))),
-        pc: Array.from({ length: points }, (_, i) => sample.pc[i % n].map((v: number, j: number) => v + shift(i + 7 * j) * 10)),
+        ld: Array.from({ length: points }, (_, i) => sample.ld[i % n].map((v: number, j: number) => v + shift(4 * i + j))),
+        pc: Array.from({ length: points }, (_, i) => sample.pc[i % n].map((v: number, j: number) => v + shift(4 * i + 2 + j) * 30)),
         topFeatures: { names: sample.topFeatures.names, values: Array.from({ length: points }, (_, i) => sample.topFeatures.values[i % n]) },
       };
       grown.report.options.plotBudget = points;
@@ -95,6 +102,7 @@ describe('panel with many points', function () {
     // The first view includes the message delivery (a structured clone of the report); generous bound.
     assert.ok(firstView < 15_000, `first view after ${firstView.toFixed(0)} ms`);
     for (const count of await countColours(page, 'ld-scatter-1-2', colours)) assert.ok(count.pixels > 0, `colour ${count.colour}`);
+    await page.screenshot({ path: join(SCREENSHOTS, 'many-points-light.png') });
   });
 
   it('still draws a million points', async () => {
