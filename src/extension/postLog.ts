@@ -15,7 +15,7 @@ export class PostLog implements vscode.Disposable {
   private readonly posted = new vscode.EventEmitter<PostedMessage>();
   readonly onDidPost = this.posted.event;
 
-  /** Reports can be large: keep the last messages of the most recent files only. */
+  /** Reports can be large: keep the last messages of the most recent files only (onDidPost sees every one). */
   constructor(
     private readonly perFile = 64,
     private readonly files = 32,
@@ -26,7 +26,10 @@ export class PostLog implements vscode.Disposable {
     const list = this.byFile.get(key) ?? [];
     this.byFile.delete(key);
     this.byFile.set(key, list);
-    list.push(message);
+    // A long fit posts hundreds of progress messages: keep the latest of each run of them, so the
+    // results around them stay in the record.
+    if (message.type === 'progress' && list[list.length - 1]?.type === 'progress') list[list.length - 1] = message;
+    else list.push(message);
     if (list.length > this.perFile) list.shift();
     while (this.byFile.size > this.files) this.byFile.delete(this.byFile.keys().next().value as string);
     this.posted.fire({ uri, message });

@@ -8,15 +8,16 @@ import { createHash } from 'node:crypto';
 import { promises as fs } from 'node:fs';
 import * as vscode from 'vscode';
 import { analyze } from '../../src/core/analyze';
+import type { FitOptions } from '../../src/core/types';
 import { openFileSource } from '../../src/node/fileSource';
 import type { ResultMessage } from '../../src/shared/messages';
-import { closeAllEditors, isFinalResult, openAndWait, sampleFile, scatterwise, screenshot, waitUntil } from './helpers';
+import { closeAllEditors, isFinalResult, nextMessage, openAndWait, sampleFile, scatterwise, screenshot, waitUntil } from './helpers';
 
-async function directAnalysis(uri: vscode.Uri) {
+/** The pipeline run here, in the test, with the options the editor's report says it used. */
+async function directAnalysis(uri: vscode.Uri, options: FitOptions) {
   const source = await openFileSource(uri.fsPath);
   try {
-    // The editor's defaults are the settings' defaults, which are the pipeline's defaults.
-    return (await analyze(source)).report;
+    return (await analyze(source, options)).report;
   } finally {
     await source.close();
   }
@@ -38,7 +39,7 @@ describe('results in the separability editor', () => {
       const answer = await openAndWait(api, uri);
       assert.equal(answer.type, 'result', answer.type === 'error' ? answer.message : '');
       const posted = (answer as ResultMessage).report;
-      const direct = await directAnalysis(uri);
+      const direct = await directAnalysis(uri, posted.options);
       assert.equal(posted.provisional, false);
       assert.deepEqual(posted.rows, direct.rows);
       assert.deepEqual(posted.classes, direct.classes);
@@ -60,6 +61,29 @@ describe('results in the separability editor', () => {
       assert.equal((answer as ResultMessage).options.label, 'fault');
     });
   }
+
+  it('takes its options from the scatterwise.* settings and refits when they change', async () => {
+    const api = await scatterwise();
+    const uri = sampleFile('seal-leak.csv');
+    const first = await openAndWait(api, uri);
+    assert.ok(isFinalResult(first));
+    assert.equal(first.report.options.solver, 'auto');
+    assert.equal(first.report.options.plotBudget, 50_000);
+    const settings = vscode.workspace.getConfiguration('scatterwise');
+    const skip = api.messagesFor(uri).length;
+    try {
+      await settings.update('solver', 'shrinkage', vscode.ConfigurationTarget.Global);
+      await settings.update('plotBudget', 100, vscode.ConfigurationTarget.Global);
+      const refit = await nextMessage(api, uri, (message): message is ResultMessage => isFinalResult(message) && message.report.options.plotBudget === 100, 60_000, skip);
+      assert.equal(refit.report.options.solver, 'shrinkage');
+      assert.equal(refit.report.solver, 'shrinkage');
+      assert.equal(refit.options.solver, 'shrinkage', 'the role form shows the solver in force');
+      assert.ok(refit.report.sample.rows.length <= 100);
+    } finally {
+      await settings.update('solver', undefined, vscode.ConfigurationTarget.Global);
+      await settings.update('plotBudget', undefined, vscode.ConfigurationTarget.Global);
+    }
+  });
 
   it('answers a reopened file from the cache, without a worker', async () => {
     const api = await scatterwise();

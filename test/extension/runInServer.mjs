@@ -25,7 +25,7 @@ const folder = path.resolve(root, argument('folder', 'sample-workspace'));
 const serverDir = path.join(root, '.vscode-test-server');
 const outputDir = path.join(root, 'test-output');
 const testsEntry = path.join(root, 'out/test/extension/index.js');
-const timeoutMs = Number(process.env.TIMEOUT_MS || 600_000);
+const timeoutMs = Number(process.env.TIMEOUT_MS || 1_800_000);
 
 for (const needed of ['dist/extension.js', 'dist/worker.js', 'out/test/extension/index.js']) {
   if (!fs.existsSync(path.join(root, needed))) {
@@ -57,7 +57,13 @@ const userSettings = path.join(scratch, 'data/User');
 fs.mkdirSync(userSettings, { recursive: true });
 fs.writeFileSync(
   path.join(userSettings, 'settings.json'),
-  JSON.stringify({ 'workbench.startupEditor': 'none', 'workbench.tips.enabled': false, 'telemetry.telemetryLevel': 'off', 'update.mode': 'none' }),
+  JSON.stringify({
+    'workbench.startupEditor': 'none',
+    'workbench.tips.enabled': false,
+    'telemetry.telemetryLevel': 'off',
+    'update.mode': 'none',
+    'git.openRepositoryInParentFolders': 'never',
+  }),
 );
 fs.writeFileSync(path.join(scratch, 'config.yaml'), 'auth: none\n');
 fs.mkdirSync(outputDir, { recursive: true });
@@ -99,7 +105,10 @@ server.stdout.pipe(serverLog);
 server.stderr.pipe(serverLog);
 
 let context;
+let stopping = false;
 function stop(code) {
+  if (stopping) return;
+  stopping = true;
   clearTimeout(timer);
   Promise.resolve(context?.close())
     .catch(() => undefined)
@@ -110,6 +119,12 @@ function stop(code) {
       process.exit(code);
     });
 }
+// Whatever goes wrong, the server and the browser go down with this process and the exit code says so.
+process.on('unhandledRejection', (error) => {
+  console.error(`runInServer: ${error?.message ?? error}`);
+  stop(2);
+});
+for (const signal of ['SIGINT', 'SIGTERM']) process.on(signal, () => stop(130));
 const timer = setTimeout(() => {
   console.error(`runInServer: the tests did not finish within ${timeoutMs / 1000} s (see test-output/code-server.log).`);
   stop(2);
@@ -127,6 +142,7 @@ await new Promise((resolve, reject) => {
 }).catch((error) => {
   console.error(`runInServer: ${error.message}`);
   stop(2);
+  return new Promise(() => {}); // stop() exits the process
 });
 
 const remote = (file) => `vscode-remote://127.0.0.1:${port}${file}`;
@@ -147,7 +163,11 @@ page = context.pages()[0] ?? (await context.newPage());
 page.on('pageerror', (error) => console.error('[workbench page error]', error.message));
 // The workbench reports the test run through these two functions (VS Code's automation hooks).
 await page.exposeFunction('codeAutomationLog', (type, args) => (console[type] ?? console.log)(...args));
-const exitCode = await new Promise((resolve) => {
-  void page.exposeFunction('codeAutomationExit', (code) => resolve(code)).then(() => page.goto(url));
+const exitCode = await new Promise((resolve, reject) => {
+  page
+    .exposeFunction('codeAutomationExit', (code) => resolve(code))
+    // A busy machine can take long to serve the workbench; the overall timer still bounds the run.
+    .then(() => page.goto(url, { waitUntil: 'domcontentloaded', timeout: timeoutMs }))
+    .catch(reject);
 });
 stop(exitCode);
