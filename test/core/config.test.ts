@@ -19,6 +19,7 @@ import {
   PROJECT_SCHEMA,
   saveRolesToConfig,
 } from '../../src/core/config/index';
+import type { SavedRoles } from '../../src/core/config/index';
 import { SEVERITIES } from '../../src/core/compare/gateRules';
 import { DataError } from '../../src/core/errors';
 import { DELIMITERS, MAX_SEED, parseCvMethod } from '../../src/core/pipeline/options';
@@ -188,7 +189,7 @@ describe('file globs', () => {
 });
 
 describe('saving roles to the config', () => {
-  const roles = { label: 'fault', features: ['kurtosis', 'crest_factor'], exclude: undefined, solver: 'shrinkage', priors: 'empirical', cv: 'kfold:5', missing: 'drop-rows' } as const;
+  const roles: SavedRoles = { label: 'fault', features: ['kurtosis', 'crest_factor'], exclude: undefined, solver: 'shrinkage', priors: 'empirical', cv: 'kfold:5', missing: 'drop-rows' };
 
   it('creates a config when there is none, and it reads back', () => {
     const saved = saveRolesToConfig(undefined, 'data/new.csv', roles);
