@@ -34,7 +34,9 @@ function checkPolicyToken(what: string, value: string, allowed: RegExp): void {
 export function buildPanelHtml(options: PanelHtmlOptions): string {
   const { cspSource, nonce, scriptUri, styleUri, title } = options;
   checkPolicyToken('nonce', nonce, /^[A-Za-z0-9+/=_-]{16,}$/);
-  checkPolicyToken('cspSource', cspSource, /^[^\s;,'"<>]+$/);
+  // VS Code's cspSource may list several sources, e.g. `'self' https://*.vscode-cdn.net`: allow
+  // space-separated hosts and quoted keywords, never a ';' or ',' that would start another directive.
+  checkPolicyToken('cspSource', cspSource, /^(?:'[a-z-]+'|[^\s;,'"<>]+)(?: (?:'[a-z-]+'|[^\s;,'"<>]+))*$/);
   const policy = [
     "default-src 'none'",
     `script-src 'nonce-${nonce}'`,
