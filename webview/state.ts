@@ -27,7 +27,7 @@ export interface PanelState {
   confusion: 'training' | 'crossValidated';
   /** Index into report.findings. */
   selectedFinding: number | null;
-  /** Index into report.sample of the selected point. */
+  /** Data row (0-based) of the selected point; a row, not a sample index, so it means the same after a refit. */
   selectedPoint: number | null;
   /** The role form as edited, not yet refitted. */
   roleEdits: EditableOptions | null;

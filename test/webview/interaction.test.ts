@@ -74,6 +74,28 @@ describe('panel interaction', function () {
     assert.equal(parsed.centroids, report.classes.length);
   });
 
+  it('exports a density plot as an SVG document with a curve and a strip per class', async () => {
+    const { page } = await panels.open();
+    await applyTheme(page, 'light');
+    const twoClasses = readFixture('seal-leak.json');
+    await showReport(page, twoClasses);
+    await waitForDrawing(page, 'ld1-density', CLASS_COLOURS.slice(0, 2) as string[]);
+    await page.click('figure[data-plot="ld1-density"] button:has-text("Export SVG")');
+    const message = await lastPosted(page, 'export');
+    assert.equal(message.fileName, 'seal-leak-ld1-density.svg');
+    const parsed = await page.evaluate((text: string) => {
+      const doc = new window.DOMParser().parseFromString(text, 'image/svg+xml');
+      return {
+        error: doc.querySelector('parsererror')?.textContent ?? null,
+        curves: Array.from(doc.querySelectorAll('path.curve'), (p: any) => p.getAttribute('data-class')),
+        markers: Array.from(doc.querySelectorAll('path.points'), (p: any) => (p.getAttribute('d').match(/M/g) ?? []).length),
+      };
+    }, message.data);
+    assert.equal(parsed.error, null);
+    assert.deepEqual(parsed.curves, twoClasses.classes.map((c) => c.label));
+    assert.deepEqual(parsed.markers, twoClasses.classes.map((_, c) => twoClasses.sample.classIndex.filter((i) => i === c).length));
+  });
+
   it('exports a plot as a PNG at twice the screen size', async () => {
     const page = await openReport(panels);
     await waitForDrawing(page, 'pc-scatter', COLOURS);
@@ -276,6 +298,13 @@ describe('panel interaction', function () {
     await first.click('[data-tab="columns"]');
     await first.locator('.role-form label:has-text("Solver") + select').selectOption('exact');
     await first.click('[data-tab="projections"]');
+    await waitForDrawing(first, LD_PLOT, COLOURS);
+    const spot = await findColour(first, LD_PLOT, COLOURS[1]);
+    const box = await first.locator(`figure[data-plot="${LD_PLOT}"] canvas.plot-overlay`).boundingBox();
+    assert.ok(spot && box);
+    await first.mouse.click(box.x + spot.x, box.y + spot.y);
+    const selected = (await first.textContent('.point-detail strong')) ?? '';
+    assert.match(selected, /^Row /);
     await first.focus(`figure[data-plot="${LD_PLOT}"] canvas.plot-overlay`);
     await first.keyboard.press('+');
     await first.waitForTimeout(400);
@@ -290,6 +319,7 @@ describe('panel interaction', function () {
     await second.click('[data-tab="columns"]');
     assert.equal(await second.locator('.role-form label:has-text("Solver") + select').inputValue(), 'exact');
     await second.click('[data-tab="projections"]');
+    assert.equal((await second.textContent('.point-detail strong')) ?? '', selected, 'the selected row is selected again');
     const view = ((await storedState(second)) as { views: Record<string, unknown> }).views[LD_PLOT];
     assert.deepEqual(view, (state as { views: Record<string, unknown> }).views[LD_PLOT]);
   });

@@ -73,12 +73,16 @@ export async function findColour(page: Page, plotId: string, colour: string): Pr
       const data = canvas.getContext('2d').getImageData(0, 0, width, height).data;
       const target = [1, 3, 5].map((i) => parseInt(colour.slice(i, i + 2), 16));
       const ratio = width / canvas.getBoundingClientRect().width;
-      // Scan from the middle outwards in rows, so the spot is well inside the plot area.
-      for (let step = 0; step < height / 2; step++) {
+      const matches = (x: number, y: number): boolean => {
+        const o = (y * width + x) * 4;
+        return data[o] === target[0] && data[o + 1] === target[1] && data[o + 2] === target[2];
+      };
+      // Scan from the middle outwards in rows, so the spot is well inside the plot area. A marker's
+      // inside is solid colour around the pixel; an ellipse's thin outline is not.
+      for (let step = 0; step < height / 2 - 2; step++) {
         for (const y of [Math.floor(height / 2) + step, Math.floor(height / 2) - step]) {
           for (let x = Math.floor(width * 0.15); x < width * 0.95; x++) {
-            const o = (y * width + x) * 4;
-            if (data[o] === target[0] && data[o + 1] === target[1] && data[o + 2] === target[2]) return { x: x / ratio, y: y / ratio };
+            if (matches(x, y) && matches(x - 1, y) && matches(x + 1, y) && matches(x, y - 1) && matches(x, y + 1)) return { x: (x + 0.5) / ratio, y: (y + 0.5) / ratio };
           }
         }
       }

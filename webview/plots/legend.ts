@@ -1,5 +1,6 @@
 /** The class legend: on the page as HTML (swatch + label text), and on an exported canvas. */
 import { element, svgElement } from '../dom';
+import { formatCount } from '../format';
 import { markerPathData } from '../palette';
 import { traceMarker } from './markers';
 import type { ClassStyle } from './scene';
@@ -21,7 +22,7 @@ export function legendList(classes: readonly ClassStyle[], counts?: readonly num
       element('li', { className: 'legend-item' }, [
         markerSwatch(style),
         element('span', { className: 'legend-label', text: style.label }),
-        counts ? element('span', { className: 'legend-count', text: ` (${counts[c].toLocaleString('en-US')})` }) : null,
+        counts ? element('span', { className: 'legend-count', text: ` (${formatCount(counts[c])})` }) : null,
       ]),
     ),
   );

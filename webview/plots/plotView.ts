@@ -47,6 +47,8 @@ export class PlotView {
   private pixelRatio = 1;
   private frame = 0;
   private densityGeometry: DensityLayout | null = null;
+  /** The theme of the last draw: hovering and highlighting reuse it instead of reading styles again. */
+  private theme: PlotTheme | null = null;
   private readonly unsubscribe: () => void;
   private readonly resizeObserver: ResizeObserver;
   private drag: { x: number; y: number; view: ViewRange; moved: boolean } | null = null;
@@ -122,7 +124,8 @@ export class PlotView {
     const context = this.base.getContext('2d');
     if (!context) return;
     context.setTransform(ratio, 0, 0, ratio, 0, 0);
-    this.render(context, this.width, this.height, readPlotTheme(), ratio);
+    this.theme = readPlotTheme();
+    this.render(context, this.width, this.height, this.theme, ratio);
     this.drawOverlay();
   }
 
@@ -135,29 +138,31 @@ export class PlotView {
 
   private drawOverlay(): void {
     const context = this.overlay.getContext('2d');
-    if (!context || this.width === 0) return;
+    if (!context || this.width === 0 || !this.theme) return;
     context.setTransform(this.pixelRatio, 0, 0, this.pixelRatio, 0, 0);
-    drawHighlights(context, (index) => this.position(index), this.options.hub.current, readPlotTheme());
+    drawHighlights(context, this.positioner(), this.options.hub.current, this.theme);
   }
 
-  /** CSS-pixel position of a sample point in this plot, or null when it is not visible. */
-  private position(index: number): { x: number; y: number } | null {
+  /** Maps a sample point to its CSS-pixel position in this plot (null when not visible), for the current view. */
+  private positioner(): (index: number) => { x: number; y: number } | null {
     const { scene } = this.options;
-    const theme = readPlotTheme();
-    const area = plotArea(this.width, this.height, theme.fontSize);
-    let point: { x: number; y: number } | null;
-    if (scene.kind === 'scatter') {
-      const projection = new Projection(this.view, area);
-      point = Number.isFinite(scene.x[index]) && Number.isFinite(scene.y[index]) ? { x: projection.x(scene.x[index]), y: projection.y(scene.y[index]) } : null;
-    } else {
-      point = stripPosition(scene, this.densityGeometry ?? densityLayout(scene, this.view, area), index);
-    }
-    if (!point || point.x < area.left || point.x > area.right || point.y < area.top || point.y > area.bottom) return null;
-    return point;
+    const projection = this.projection();
+    const { area } = projection;
+    const layout = scene.kind === 'density' ? (this.densityGeometry ?? densityLayout(scene, this.view, area)) : null;
+    return (index) => {
+      let point: { x: number; y: number } | null;
+      if (scene.kind === 'scatter') {
+        point = Number.isFinite(scene.x[index]) && Number.isFinite(scene.y[index]) ? { x: projection.x(scene.x[index]), y: projection.y(scene.y[index]) } : null;
+      } else {
+        point = layout ? stripPosition(scene, layout, index) : null;
+      }
+      if (!point || point.x < area.left || point.x > area.right || point.y < area.top || point.y > area.bottom) return null;
+      return point;
+    };
   }
 
   private projection(): Projection {
-    return new Projection(this.view, plotArea(this.width, this.height, readPlotTheme().fontSize));
+    return new Projection(this.view, plotArea(this.width, this.height, (this.theme ?? readPlotTheme()).fontSize));
   }
 
   /** The sample point under a CSS-pixel position, or -1. */
@@ -244,7 +249,7 @@ export class PlotView {
       const drag = this.drag;
       if (drag && (drag.moved || Math.hypot(x - drag.x, y - drag.y) > 3)) {
         drag.moved = true;
-        const projection = new Projection(drag.view, plotArea(this.width, this.height, readPlotTheme().fontSize));
+        const projection = new Projection(drag.view, plotArea(this.width, this.height, (this.theme ?? readPlotTheme()).fontSize));
         const dy = scene.kind === 'density' ? 0 : (y - drag.y) / projection.scaleY;
         this.setView(panView(drag.view, -(x - drag.x) / projection.scaleX, dy));
         this.showTooltip(-1, 0, 0);

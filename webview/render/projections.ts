@@ -212,11 +212,11 @@ export function projectionsSection(report: FitReport, columns: SampleColumns, ac
   const unsubscribe = hub.subscribe((state) => {
     if (state.selected === lastSelected) return;
     lastSelected = state.selected;
-    store.update({ selectedPoint: state.selected >= 0 ? state.selected : null });
+    store.update({ selectedPoint: state.selected >= 0 ? report.sample.rows[state.selected] : null });
     showSelected(state.selected);
   });
   const restored = store.value.selectedPoint;
-  hub.select(restored !== null && restored < columns.count ? restored : -1);
+  hub.select(restored === null ? -1 : (columns.indexOfRow(restored) ?? -1));
   showSelected(hub.current.selected);
 
   const children: HTMLElement[] = [];

@@ -4,10 +4,10 @@ import { button, element } from '../dom';
 import { roleForm } from '../roles';
 import type { StateStore } from '../state';
 
+/** The host's phase names in words; any other phase is shown as sent. */
 const PHASE_WORDS: Record<string, string> = {
-  inspect: 'Looking at the columns',
-  moments: 'Reading the rows',
-  rows: 'Scoring the rows',
+  'first look': 'A first look at the start of the file',
+  analysis: 'Reading the whole file',
 };
 
 export function progressStrip(message: ProgressMessage, post: (message: FromPanel) => void): HTMLElement {
