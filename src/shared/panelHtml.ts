@@ -35,8 +35,9 @@ export function buildPanelHtml(options: PanelHtmlOptions): string {
   const { cspSource, nonce, scriptUri, styleUri, title } = options;
   checkPolicyToken('nonce', nonce, /^[A-Za-z0-9+/=_-]{16,}$/);
   // VS Code's cspSource may list several sources, e.g. `'self' https://*.vscode-cdn.net`: allow
-  // space-separated hosts and quoted keywords, never a ';' or ',' that would start another directive.
-  checkPolicyToken('cspSource', cspSource, /^(?:'[a-z-]+'|[^\s;,'"<>]+)(?: (?:'[a-z-]+'|[^\s;,'"<>]+))*$/);
+  // space-separated hosts and the 'self' keyword — no other keyword ('unsafe-inline' would admit
+  // inline styles), never a ';' or ',' that would start another directive.
+  checkPolicyToken('cspSource', cspSource, /^(?:'self'|[^\s;,'"<>]+)(?: (?:'self'|[^\s;,'"<>]+))*$/);
   const policy = [
     "default-src 'none'",
     `script-src 'nonce-${nonce}'`,

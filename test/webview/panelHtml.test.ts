@@ -38,7 +38,15 @@ describe('buildPanelHtml', () => {
     assert.equal((html.match(/<script\b/g) ?? []).length, 1);
   });
 
-  it('refuses a nonce or source that would break out of the policy', () => {
+  it('accepts the several sources VS Code gives as cspSource', () => {
+    const cspSource = "'self' https://*.vscode-cdn.net";
+    const policy = policyOf(buildPanelHtml({ ...base, cspSource }));
+    assert.ok(policy.includes(`style-src ${cspSource};`) && policy.includes(`img-src ${cspSource} data: blob:;`), policy);
+  });
+
+  it('refuses a nonce or source that would break out of the policy or weaken it', () => {
+    assert.throws(() => buildPanelHtml({ ...base, cspSource: "'self' 'unsafe-inline'" }), /cspSource/);
+    assert.throws(() => buildPanelHtml({ ...base, cspSource: 'https://a, https://b' }), /cspSource/);
     assert.throws(() => buildPanelHtml({ ...base, nonce: "abc'; script-src *" }), /nonce/);
     assert.throws(() => buildPanelHtml({ ...base, nonce: 'short' }), /nonce/);
     assert.throws(() => buildPanelHtml({ ...base, cspSource: 'https://a; script-src *' }), /cspSource/);
