@@ -37,6 +37,8 @@ await Promise.all([
   build({ ...node, entryPoints: { extension: 'src/extension/extension.ts' }, outdir: 'dist', external: ['vscode'] }),
   // The worker thread that runs fits off the host's event loop.
   build({ ...node, entryPoints: { worker: 'src/extension/worker.ts' }, outdir: 'dist' }),
+  // The workers of the parallel row passes, started by the CLI and by the fit worker.
+  build({ ...node, entryPoints: { scanWorker: 'src/node/parallelScanWorker.ts' }, outdir: 'dist' }),
   // The command line.
   build({ ...node, entryPoints: { cli: 'src/cli/main.ts' }, outdir: 'dist', banner: { js: '#!/usr/bin/env node' } }),
   // The panel, in the browser of the webview.

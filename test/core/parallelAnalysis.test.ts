@@ -16,43 +16,7 @@ import type { ScoreBatch } from '../../src/core/pipeline/secondPass';
 import type { ByteSource } from '../../src/core/source';
 import type { FitOptions, FitReport } from '../../src/core/types';
 import { addColumn, pumpTable, sourceOf, toCsv, uniform } from './generatedTables';
-
-/** Reports compared: these keys must match exactly (counts, rows, labels, texts). */
-function exactParts(report: FitReport): unknown {
-  return {
-    rows: report.rows,
-    classes: report.classes.map((c) => [c.label, c.count]),
-    confusion: report.confusion,
-    crossValidatedConfusion: report.crossValidatedConfusion,
-    accuracy: report.accuracy,
-    misclassified: report.misclassified.map((m) => [m.row, m.line, m.label, m.predicted]),
-    misclassifiedTotal: report.misclassifiedTotal,
-    sample: { total: report.sample.total, rows: report.sample.rows, lines: report.sample.lines, classIndex: report.sample.classIndex, top: report.sample.topFeatures },
-    findings: report.findings.map((f) => [f.code, f.severity, f.message]),
-    removed: report.removedFeatures,
-    solver: report.solver,
-    provisional: report.provisional,
-  };
-}
-
-/** Every number of the two reports equal to within `relative` of the larger magnitude (timing left out). */
-function assertClose(a: unknown, b: unknown, path: string, relative = 1e-9): void {
-  if (typeof a === 'number' && typeof b === 'number') {
-    if (Number.isNaN(a) || Number.isNaN(b) || !Number.isFinite(a) || !Number.isFinite(b)) {
-      assert.ok(Object.is(a, b) || a === b, `${path}: ${a} vs ${b}`);
-      return;
-    }
-    assert.ok(Math.abs(a - b) <= relative * Math.max(1, Math.abs(a), Math.abs(b)), `${path}: ${a} vs ${b}`);
-    return;
-  }
-  if (a === null || b === null || typeof a !== 'object' || typeof b !== 'object') {
-    assert.deepEqual(a, b, path);
-    return;
-  }
-  const keysA = Object.keys(a).filter((k) => k !== 'timing');
-  assert.deepEqual(keysA.sort(), Object.keys(b).filter((k) => k !== 'timing').sort(), `${path}: keys`);
-  for (const key of keysA) assertClose((a as Record<string, unknown>)[key], (b as Record<string, unknown>)[key], `${path}.${key}`, relative);
-}
+import { assertClose, assertSameReport } from './reportComparison';
 
 /** The scanner, recording the kind of each job it runs and how many ranges each had. */
 function recording(scanner: RangeScanner): RangeScanner & { jobs: string[] } {
@@ -84,11 +48,6 @@ async function both(text: string, options: Partial<FitOptions>, workers: number,
 function jobKinds(): string[] {
   for (const job of lastJobs) assert.ok(Number(job.split('×')[1]) > 2, `${job}: several ranges`);
   return lastJobs.map((job) => job.split('×')[0]!);
-}
-
-function assertSameReport(single: FitReport, parallel: FitReport): void {
-  assert.deepEqual(exactParts(parallel), exactParts(single));
-  assertClose(parallel, single, 'report');
 }
 
 /** A pump table with planted defects: missing cells, a non-numeric cell, a duplicated row, an infinite value. */

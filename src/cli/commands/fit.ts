@@ -3,6 +3,7 @@
  * contract), Markdown or text, to stdout or `--out`; `--scores` adds the discriminant scores of
  * every row. The data file is opened read-only and no output may name it.
  */
+import { resolve } from 'node:path';
 import { analyze } from '../../core/analyze';
 import { toMarkdown } from '../../core/format/markdown';
 import { toText } from '../../core/format/text';
@@ -14,6 +15,7 @@ import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
 import { checkOutputs, openInput, OutputFile } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
+import { createParallelScanner } from '../../node/parallelScan';
 import { ScoresFile } from '../scoresFile';
 import { runFitFromMoments } from './moments';
 
@@ -24,6 +26,12 @@ const OUTPUT_SPECS: readonly OptionSpec[] = [
   { name: 'format', value: 'FORMAT', values: REPORT_FORMATS, describe: 'report format (default text)' },
   { name: 'out', value: 'FILE', describe: 'write the report to FILE instead of the standard output' },
   { name: 'scores', value: 'FILE', describe: 'write a CSV of discriminant scores LD1..LDk, one line per data row (empty for dropped rows)' },
+  {
+    name: 'workers',
+    value: 'N',
+    check: (value) => (/^[1-9][0-9]*$/.test(value) ? null : 'a whole number of at least 1'),
+    describe: 'threads reading the rows of a large CSV or TSV (default: one per core; 1 reads in this thread)',
+  },
   { name: 'moments', describe: 'the FILEs are per-class moments (JSON from `scatterwise moments`, or CSV results of the SQL moments query), merged and fitted without the rows' },
 ];
 
@@ -56,10 +64,14 @@ async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
 
   const source = await openInput(io.cwd, input);
   const scores = scoresPath !== undefined ? new ScoresFile(scoresPath) : undefined;
+  const workers = Number(valueOf(args, 'workers') ?? 0) || undefined;
+  // Large splittable text is read by several threads; the report is the same (core/parallel).
+  const scanner = workers === 1 ? undefined : createParallelScanner(resolve(io.cwd, input), source.name, workers ? { workers } : {});
   try {
     const { report } = await analyze(source, options, {
       signal: io.signal,
       ...(scores ? { onScores: (batch) => scores.add(batch) } : {}),
+      ...(scanner ? { scanner } : {}),
     });
     scores?.finish(report.rows.total, report.discriminant.eigenvalues.length);
     const text = renderReport(report, format);
@@ -78,6 +90,7 @@ async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
     scores?.discard();
     throw error;
   } finally {
+    await scanner?.close();
     await source.close();
   }
 }

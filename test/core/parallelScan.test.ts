@@ -1,0 +1,92 @@
+/**
+ * The parallel row passes on real worker threads (src/node/parallelScan.ts, its worker bundled from
+ * the current sources into a temporary folder): a file analysed by two and by three workers gives
+ * the single-thread report; cancelling stops the workers; a reader error comes back with the line
+ * a single thread reports. Invented pump-fleet data written into os.tmpdir().
+ */
+import { strict as assert } from 'node:assert';
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { createHash } from 'node:crypto';
+import { analyze } from '../../src/core/analyze';
+import { DataError } from '../../src/core/errors';
+import type { FitOptions, FitReport } from '../../src/core/types';
+import { openFileSource } from '../../src/node/fileSource';
+import { createParallelScanner } from '../../src/node/parallelScan';
+import { pumpTable, toCsv, writeTemporary } from './generatedTables';
+import { assertSameReport } from './reportComparison';
+
+const REPOSITORY = resolve(__dirname, '..', '..', '..');
+
+/** Bundles the scan worker as esbuild.mjs does, so the test runs the current sources. */
+function buildWorker(folder: string): string {
+  const outfile = join(folder, 'scanWorker.js');
+  const script = `require('esbuild').build({ entryPoints: ['src/node/parallelScanWorker.ts'], bundle: true, platform: 'node', format: 'cjs', target: 'node20', outfile: ${JSON.stringify(outfile)}, logLevel: 'error' }).catch(() => process.exit(1))`;
+  const run = spawnSync(process.execPath, ['-e', script], { cwd: REPOSITORY, encoding: 'utf8' });
+  if (run.status !== 0) throw new Error(`Building the scan worker failed:\n${run.stderr}`);
+  return outfile;
+}
+
+async function fitFile(path: string, options: Partial<FitOptions>, workers: number, workerScript: string, signal?: AbortSignal): Promise<FitReport> {
+  const source = await openFileSource(path);
+  const scanner = workers > 1 ? createParallelScanner(path, source.name, { workers, minimumBytes: 0, rangeBytes: 24 * 1024, workerScript }) : undefined;
+  try {
+    return (await analyze(source, options, { ...(scanner ? { scanner } : {}), ...(signal ? { signal } : {}) })).report;
+  } finally {
+    await scanner?.close();
+    await source.close();
+  }
+}
+
+describe('parallel row passes on worker threads', function () {
+  this.timeout(120000);
+  let folder: string;
+  let workerScript: string;
+  let file: string;
+
+  before(() => {
+    folder = mkdtempSync(join(tmpdir(), 'scatterwise-parallel-'));
+    workerScript = buildWorker(folder);
+    file = writeTemporary('fleet.csv', toCsv(pumpTable([2500, 1800, 3100], 8, 17)));
+  });
+  after(() => rmSync(folder, { recursive: true, force: true }));
+
+  it('two and three workers give the single-thread report (leave-one-out and k-fold)', async () => {
+    const before = createHash('sha256').update(readFileSync(file)).digest('hex');
+    const modified = statSync(file).mtimeMs;
+    for (const cv of ['loo', 'kfold:5'] as const) {
+      const single = await fitFile(file, { cv, plotBudget: 2000 }, 1, workerScript);
+      for (const workers of [2, 3]) assertSameReport(single, await fitFile(file, { cv, plotBudget: 2000 }, workers, workerScript));
+    }
+    assert.equal(createHash('sha256').update(readFileSync(file)).digest('hex'), before, 'the data file is unchanged');
+    assert.equal(statSync(file).mtimeMs, modified);
+  });
+
+  it('a cancelled analysis rejects with CancelledError', async () => {
+    const abort = new AbortController();
+    const running = fitFile(file, {}, 2, workerScript, abort.signal);
+    setTimeout(() => abort.abort(), 50);
+    await assert.rejects(running, (error: Error) => error.name === 'CancelledError');
+  });
+
+  it('a reader error in a worker is reported with the line one thread reports', async () => {
+    const lines = toCsv(pumpTable([1500, 1500, 1500], 4, 3)).split('\n');
+    lines[3000] = `${lines[3000]!.split(',').slice(0, 3).join(',')}`;
+    const broken = writeTemporary('broken.csv', lines.join('\n'));
+    const errorOf = async (workers: number): Promise<DataError> => {
+      try {
+        await fitFile(broken, {}, workers, workerScript);
+      } catch (error) {
+        assert.ok(error instanceof DataError, String(error));
+        return error;
+      }
+      assert.fail('a short row must fail');
+    };
+    const single = await errorOf(1);
+    const parallel = await errorOf(2);
+    assert.equal(single.where.line, 3001);
+    assert.equal(parallel.message, single.message);
+  });
+});
