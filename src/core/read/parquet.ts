@@ -4,13 +4,15 @@
  *
  * The scan reads one row group at a time, one column at a time, and turns each column into a
  * typed array at once (8 bytes a feature value, 4 a label id), so the decoded JavaScript values of
- * only one column chunk are alive at any moment. Within a row group it reads slices of `sliceRows`
- * rows when every needed column chunk has an offset index (hyparquet then decodes only the pages
- * of the slice) or is small; otherwise a slice would decode its column from the row group's first
- * page again (measured 4.6× slower on a DuckDB file, whose column chunks are often a single
- * page), so the whole row group is read at once. Memory is therefore bounded by the rows read at a time
- * × (8·features + 4) bytes plus one decoded column chunk: a file written in one huge row group
- * without offset indexes needs memory in proportion to it (see bench/reader.ts).
+ * only one column chunk are alive at any moment. A whole row group is decoded page by page
+ * (parquetPages.ts). A row group too large for `wholeGroupBytes` is read in slices of `sliceRows`
+ * rows through hyparquet's rowStart/rowEnd when every needed column chunk has an offset index
+ * (hyparquet then decodes only the pages of the slice) or is small; otherwise a slice would decode
+ * its column from the row group's first page again (measured 4.6× slower on a DuckDB file, whose
+ * column chunks are a single page), so such a group is read whole too. Memory is therefore
+ * bounded by the rows read at a time × (8·features + 4) bytes plus one decoded column chunk: a
+ * file written in one huge row group without offset indexes needs memory in proportion to it
+ * (see bench/reader.ts).
  */
 import { parquetMetadataAsync, parquetRead, type AsyncBuffer, type ColumnData, type FileMetaData } from 'hyparquet';
 import { compressors } from 'hyparquet-compressors';
@@ -20,6 +22,7 @@ import { CELL_MISSING, CELL_TEXT } from './cellValue';
 import { ColumnSample } from './columnSample';
 import { isParquetMagic } from './format';
 import { asyncBufferOf, ParquetFeatureReader, textOf } from './parquetValues';
+import { readFlatColumnPages, type FlatPage } from './parquetPages';
 import { parquetColumns, type ParquetColumn } from './parquetSchema';
 import { PassProgress } from './progress';
 import { readCopy } from './readBytes';
@@ -27,7 +30,9 @@ import { cellRulesFor } from './textOptions';
 import { DEFAULT_MISSING_TOKENS, type CellExample, type ColumnSummary, type ReaderNote, type ReadOptions, type ScanRequest, type ScanSummary, type TableInspection } from './types';
 
 export interface ParquetTuning {
-  /** Rows decoded at a time within a row group. */
+  /** A row group whose rows need at most this many bytes in typed arrays is read whole. */
+  wholeGroupBytes: number;
+  /** Rows decoded at a time within a larger row group, when it can be sliced. */
   sliceRows: number;
   /** Rows per batch handed to onBatch. */
   batchRows: number;
@@ -35,7 +40,7 @@ export interface ParquetTuning {
   sampleRows: number;
 }
 
-export const DEFAULT_PARQUET_TUNING: ParquetTuning = { sliceRows: 65_536, batchRows: 4096, sampleRows: 10_000 };
+export const DEFAULT_PARQUET_TUNING: ParquetTuning = { wholeGroupBytes: 64 * 1024 * 1024, sliceRows: 65_536, batchRows: 4096, sampleRows: 10_000 };
 
 const EXAMPLES = 5;
 const DOUBLE_DIGITS = 15;
@@ -98,6 +103,42 @@ async function readColumnRows(opened: OpenedParquet, name: string, column: strin
   return chunks;
 }
 
+/** readFlatColumnPages with its errors as DataErrors naming the file, row group and column. */
+async function readFlatColumn(opened: OpenedParquet, name: string, group: FileMetaData['row_groups'][number], column: string, onPage: (page: FlatPage) => void, rowLimit?: number): Promise<boolean> {
+  try {
+    return await readFlatColumnPages(opened.file, opened.metadata, group, column, compressors, onPage, rowLimit);
+  } catch (error) {
+    if (error instanceof DataError || error instanceof CancelledError) throw error;
+    throw new DataError(
+      'parquet-invalid',
+      `${name}: column ${column} of a row group cannot be decoded (${(error as Error).message}).`,
+      { file: name, column },
+      'The file may be truncated or damaged; write or copy it again.',
+    );
+  }
+}
+
+/**
+ * Stores a page's rows through `store(row, value)`; when the page has no nulls and its values are
+ * a typed array of numbers, feature columns (`numericTargets`, unless the column is also the
+ * label) are filled by one typed copy instead.
+ */
+function storePage(page: FlatPage, groupStart: number, store: (row: number, value: unknown) => void, numericTargets: Float64Array[], rangeStart: number): void {
+  const { values, definitionLevels, presentLevel } = page;
+  const first = groupStart + page.firstRow;
+  const typedNumbers = values instanceof Float64Array || values instanceof Float32Array || values instanceof Int32Array || values instanceof Uint32Array;
+  if (definitionLevels.length === 0 && typedNumbers && numericTargets.length > 0) {
+    for (const target of numericTargets) target.set(values.subarray(0, page.rows), first - rangeStart);
+    return;
+  }
+  if (definitionLevels.length === 0) {
+    for (let i = 0; i < page.rows; i++) store(first + i, values[i]);
+    return;
+  }
+  let next = 0;
+  for (let i = 0; i < page.rows; i++) store(first + i, definitionLevels[i] === presentLevel ? values[next++] : null);
+}
+
 /** Calls `visit(row, value)` for rows [rowStart, rowEnd) of a column's chunks, in row order. */
 function forEachRow(chunks: readonly ColumnData[], rowStart: number, rowEnd: number, visit: (row: number, value: unknown) => void): void {
   for (const chunk of chunks) {
@@ -111,12 +152,14 @@ function forEachRow(chunks: readonly ColumnData[], rowStart: number, rowEnd: num
 const SMALL_CHUNK_BYTES = 1024 * 1024;
 
 /**
- * Row ranges of a row group read at a time: slices when every needed column chunk has an offset
- * index or is small, else the whole group.
+ * Row ranges of a row group read at a time: the whole group when its rows fit `wholeGroupBytes`
+ * as typed arrays (`rowBytes` each) or when it cannot be sliced cheaply; else slices, when every
+ * needed column chunk has an offset index or is small.
  */
-function rowRanges(group: FileMetaData['row_groups'][number], groupStart: number, needed: ReadonlySet<string>, sliceRows: number): [number, number][] {
+function rowRanges(group: FileMetaData['row_groups'][number], groupStart: number, needed: ReadonlySet<string>, rowBytes: number, tuning: ParquetTuning): [number, number][] {
   const rows = Number(group.num_rows);
-  const sliceable = group.columns.every(
+  const sliceRows = tuning.sliceRows;
+  const sliceable = rows * rowBytes > tuning.wholeGroupBytes && group.columns.every(
     (chunk) =>
       !needed.has(chunk.meta_data?.path_in_schema[0] ?? '') ||
       (chunk.offset_index_offset !== undefined && (chunk.offset_index_length ?? 0) > 0) ||
@@ -157,8 +200,8 @@ export async function inspectParquet(source: ByteSource, options: ReadOptions, c
       columns.push(sample.summary('nested'));
       continue;
     }
-    const chunks = await readColumnRows(opened, source.name, column.name, 0, sampledRows);
-    forEachRow(chunks, 0, sampledRows, (_row, value) => {
+    const visit = (row: number, value: unknown): void => {
+      if (row >= sampledRows) return;
       if (column.kind === 'numeric') {
         const number = reader.valueOf(value);
         if (reader.lastKind === CELL_MISSING) sample.addMissing();
@@ -168,7 +211,11 @@ export async function inspectParquet(source: ByteSource, options: ReadOptions, c
         if (text === undefined) sample.addMissing();
         else sample.addText(text);
       }
-    });
+    };
+    // The first row group page by page when it holds the whole sample, else hyparquet's reader across groups.
+    const firstGroup = opened.metadata.row_groups[0];
+    const paged = Number(firstGroup.num_rows) >= sampledRows && (await readFlatColumn(opened, source.name, firstGroup, column.name, (page) => storePage(page, 0, visit, [], 0), sampledRows));
+    if (!paged) forEachRow(await readColumnRows(opened, source.name, column.name, 0, sampledRows), 0, sampledRows, visit);
     const summary = sample.summary();
     columns.push(summary.kind === 'empty' ? summary : { ...summary, kind: column.kind });
     progress.update(0);
@@ -232,7 +279,7 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
 
   let groupStart = 0;
   for (const group of opened.metadata.row_groups) {
-    for (const [rangeStart, rangeEnd] of rowRanges(group, groupStart, new Set(needed), tuning.sliceRows)) {
+    for (const [rangeStart, rangeEnd] of rowRanges(group, groupStart, new Set(needed), 8 * d + 4, tuning)) {
       const rows = rangeEnd - rangeStart;
       if (columnLabels.length < rows) {
         columnValues = features.map(() => new Float64Array(rows));
@@ -240,26 +287,27 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
       }
       if (!label) columnLabels.fill(-1, 0, rows);
       for (const [k, column] of needed.entries()) {
-        const chunks = await readColumnRows(opened, name, column, rangeStart, rangeEnd);
+        const slots = features.flatMap((feature, slot) => (feature.name === column ? [slot] : []));
+        for (const slot of slots) columnValues[slot].fill(NaN, 0, rows);
         // Labels are interned in row order, so ids follow the order of first appearance.
-        if (label?.name === column) forEachRow(chunks, rangeStart, rangeEnd, (row, value) => (columnLabels[row - rangeStart] = labelId(value)));
-        features.forEach((feature, slot) => {
-          if (feature.name !== column) return;
-          const target = columnValues[slot];
-          target.fill(NaN, 0, rows);
-          forEachRow(chunks, rangeStart, rangeEnd, (row, value) => {
+        const store = (row: number, value: unknown): void => {
+          if (label?.name === column) columnLabels[row - rangeStart] = labelId(value);
+          for (const slot of slots) {
             if (typeof value === 'number') {
-              target[row - rangeStart] = value;
-              return;
+              columnValues[slot][row - rangeStart] = value;
+              continue;
             }
-            target[row - rangeStart] = reader.valueOf(value);
+            columnValues[slot][row - rangeStart] = reader.valueOf(value);
             if (reader.lostPrecision) lostPrecision[slot]++;
             if (reader.lastKind === CELL_TEXT) {
               nonNumeric[slot]++;
               if (nonNumericExamples[slot].length < EXAMPLES) nonNumericExamples[slot].push({ row, text: textOf(value, rules) ?? '' });
             }
-          });
-        });
+          }
+        };
+        const wholeGroup = rangeStart === groupStart && rangeEnd === groupStart + Number(group.num_rows);
+        const paged = wholeGroup && (await readFlatColumn(opened, name, group, column, (page) => storePage(page, groupStart, store, label?.name === column ? [] : slots.map((slot) => columnValues[slot]), rangeStart)));
+        if (!paged) forEachRow(await readColumnRows(opened, name, column, rangeStart, rangeEnd), rangeStart, rangeEnd, store);
         progress.update(Math.round((source.size * (rangeStart + (rows * (k + 1)) / needed.length)) / Math.max(1, opened.rows)));
       }
       for (let batchStart = 0; batchStart < rows; batchStart += batchRows) {

@@ -55,7 +55,7 @@ async function scanAll(bytes: Uint8Array, name: string, inspection: TableInspect
         dictionary = batchLabels;
       },
     },
-    { ...DEFAULT_PARQUET_TUNING, sliceRows, batchRows: 16 },
+    { ...DEFAULT_PARQUET_TUNING, sliceRows, wholeGroupBytes: sliceRows < 100 ? 0 : DEFAULT_PARQUET_TUNING.wholeGroupBytes, batchRows: 16 },
   );
   return { values, labels, firstRows, dictionary: dictionary.slice(), summary };
 }
@@ -213,7 +213,7 @@ describe('parquet', function () {
     const source = memorySource('pumps.parquet', bytes);
     const inspection = await inspectTable(source);
     const events: Progress[] = [];
-    await scanParquet({ source, inspection, plan: { label: 5, features: [0] }, onBatch: () => {}, control: { onProgress: (p) => events.push(p) } }, { ...DEFAULT_PARQUET_TUNING, sliceRows: 10 });
+    await scanParquet({ source, inspection, plan: { label: 5, features: [0] }, onBatch: () => {}, control: { onProgress: (p) => events.push(p) } }, { ...DEFAULT_PARQUET_TUNING, sliceRows: 10, wholeGroupBytes: 0 });
     assert.ok(events.length > 5);
     assert.equal(events[events.length - 1].bytesRead, source.size);
     const controller = new AbortController();
