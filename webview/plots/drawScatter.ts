@@ -82,10 +82,11 @@ function drawPoints(context: CanvasRenderingContext2D, scene: ScatterScene, proj
       const end = Math.min(members.length, start + CHUNK);
       const positions = new Float32Array(2 * (end - start));
       let count = 0;
+      const classX = scene.classX[c];
+      const classY = scene.classY[c];
       for (let k = start; k < end; k++) {
-        const i = members[k];
-        const x = scene.x[i];
-        const y = scene.y[i];
+        const x = classX[k];
+        const y = classY[k];
         if (!(x >= x0 && x <= x1 && y >= y0 && y <= y1)) continue;
         positions[2 * count] = kx * x + bx;
         positions[2 * count + 1] = ky * y + by;

@@ -43,6 +43,9 @@ export interface ScatterScene {
   classIndex: Int32Array;
   classes: ClassStyle[];
   members: Int32Array[];
+  /** Per class, the coordinates of its members in member order: drawing reads them sequentially. */
+  classX: Float32Array[];
+  classY: Float32Array[];
   /** Per class: a marked centre (the class centroid), or null when the class has no points here. */
   centroids: ({ x: number; y: number } | null)[];
   /** What the centroids are, for the legend and the text alternative. */
@@ -79,6 +82,7 @@ export function scatterScene(options: {
     if (y[i] < yLow) yLow = y[i];
     if (y[i] > yHigh) yHigh = y[i];
   }
+  const members = membersByClass(classIndex, classes.length);
   return {
     kind: 'scatter',
     id: options.id,
@@ -89,7 +93,9 @@ export function scatterScene(options: {
     y,
     classIndex,
     classes,
-    members: membersByClass(classIndex, classes.length),
+    members,
+    classX: members.map((list) => Float32Array.from(list, (i) => x[i])),
+    classY: members.map((list) => Float32Array.from(list, (i) => y[i])),
     centroids,
     centroidNote: options.centroids ? 'class centroids over all rows used' : 'class means of the plotted rows',
     spreads,
