@@ -9,7 +9,7 @@ import type { Page } from 'playwright-core';
 import { isFromPanel, type FromPanel } from '../../src/shared/messages';
 import { CLASS_COLOURS } from '../../webview/palette';
 import { usePanelBrowser } from './browserSuite';
-import { applyTheme, posted, readFixture, showReport, storedState } from './harness';
+import { applyTheme, columnsOf, posted, readFixture, send, showReport, storedState } from './harness';
 import { findColour, overlayPixels, waitForDrawing } from './pixels';
 
 declare const document: any;
@@ -132,6 +132,14 @@ describe('panel interaction', function () {
     await form.locator('button:has-text("Refit")').click();
     const message = await lastPosted(page, 'refit');
     assert.deepEqual(message.options, { label: report.label, features: report.features.slice(1), solver: 'shrinkage', priors: 'uniform', cv: 'kfold:5', missing: 'drop-columns' });
+    // The host answers with a result fitted with those options: they are no longer pending edits.
+    assert.ok(((await storedState(page)) as { roleEdits: unknown }).roleEdits, 'the edits are kept until refitted');
+    const refitted = { ...report, solver: 'shrinkage' as const, options: { ...report.options, solver: 'shrinkage' as const, priors: 'uniform' as const, cv: 'kfold:5' as const, missing: 'drop-columns' as const } };
+    await send(page, { type: 'result', report: refitted, columns: columnsOf(report), options: message.options });
+    await page.waitForSelector('.verdict-sentence');
+    assert.equal(((await storedState(page)) as { roleEdits: unknown }).roleEdits, null);
+    await page.click('[data-tab="columns"]');
+    assert.equal(await form.locator('label:has-text("Solver") + select').inputValue(), 'shrinkage', 'the form shows the options of the result');
     await form.locator('button:has-text("Untick all")').click();
     assert.equal(await form.locator('button:has-text("Refit")').isDisabled(), true);
     assert.match((await form.locator('.form-problem').textContent()) ?? '', /at least one feature/);

@@ -19,6 +19,12 @@ export function fileStem(name: string): string {
   return stem || 'scatterwise';
 }
 
+/** Whether two option sets choose the same fit (features compared in order, as they are fitted). */
+function sameOptions(a: EditableOptions | null, b: EditableOptions): boolean {
+  if (!a) return false;
+  return a.label === b.label && a.solver === b.solver && a.priors === b.priors && a.cv === b.cv && a.missing === b.missing && JSON.stringify(a.features ?? null) === JSON.stringify(b.features ?? null);
+}
+
 export class PanelApp {
   private fileName = '';
   private settings: PanelSettings | null = null;
@@ -52,6 +58,8 @@ export class PanelApp {
         this.report = message.report;
         this.columns = message.columns;
         this.options = message.options;
+        // Edits that this result was fitted with are no longer pending.
+        if (sameOptions(this.store.value.roleEdits, message.options)) this.store.update({ roleEdits: null });
         this.error = null;
         this.comparison = null;
         this.showProgress(null);
