@@ -15,7 +15,6 @@ export interface PlotTheme {
   fontFamily: string;
   /** Font size in CSS pixels. */
   fontSize: number;
-  highContrast: boolean;
 }
 
 function variable(style: CSSStyleDeclaration, name: string, fallback: string): string {
@@ -37,6 +36,5 @@ export function readPlotTheme(): PlotTheme {
     focus: variable(style, '--vscode-focusBorder', dark ? '#0078d4' : '#005fb8'),
     fontFamily: variable(style, '--vscode-font-family', 'system-ui, sans-serif'),
     fontSize: Number.parseFloat(variable(style, '--vscode-font-size', '13')) || 13,
-    highContrast,
   };
 }
