@@ -8,14 +8,15 @@ import { fileURLToPath } from 'node:url';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 const manifest = JSON.parse(readFileSync(join(root, 'package.json'), 'utf8'));
-const bundles = ['dist/extension.js', 'dist/worker.js', 'dist/webview.js', 'dist/webview.css'];
+const bundles = ['dist/extension.js', 'dist/worker.js', 'dist/scanWorker.js', 'dist/webview.js', 'dist/webview.css'];
 const missing = bundles.filter((file) => !existsSync(join(root, file)));
 if (missing.length) {
   console.error(`package: ${missing.join(', ')} missing; run \`node esbuild.mjs --production\` first.`);
   process.exit(1);
 }
 
-const allowed = new Set([...bundles, 'package.json', 'README.md', 'LICENSE']);
+// The project config's schema ships too: package.json contributes it for scatterwise.config.json.
+const allowed = new Set([...bundles, 'package.json', 'README.md', 'LICENSE', 'schemas/scatterwise.schema.json']);
 const files = await listFiles({ cwd: root, dependencies: false });
 const unexpected = files.filter((file) => !allowed.has(file.replace(/\\/g, '/')));
 if (unexpected.length) {

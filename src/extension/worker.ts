@@ -6,6 +6,7 @@
  */
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
+import { availableParallelism } from 'node:os';
 import { parentPort, workerData } from 'node:worker_threads';
 import { analyze } from '../core/analyze';
 import { DataError } from '../core/errors';
@@ -13,6 +14,7 @@ import { inspectTable } from '../core/read/index';
 import type { TableInspection } from '../core/read/types';
 import { memorySource, type Progress } from '../core/source';
 import { openFileSource } from '../node/fileSource';
+import { createParallelScanner } from '../node/parallelScan';
 import type { ColumnChoice } from '../shared/messages';
 import type { FitFailure, FitRequest, FromWorker } from './workerProtocol';
 
@@ -87,7 +89,13 @@ async function run(request: FitRequest): Promise<void> {
         if (!(error instanceof DataError)) throw error;
       }
     }
-    const full = await analyze(source, request.options, { onProgress: progressPoster('analysis') });
+    const scanner = bytes ? undefined : parallelScanner(request);
+    let full;
+    try {
+      full = await analyze(source, request.options, { onProgress: progressPoster('analysis'), ...(scanner ? { scanner } : {}) });
+    } finally {
+      await scanner?.close();
+    }
     full.report.source.sha256 = await hashing;
     post({ type: 'result', report: full.report, columns: columnChoices(full.inspection) });
   } catch (error) {
@@ -95,6 +103,16 @@ async function run(request: FitRequest): Promise<void> {
   } finally {
     await source?.close();
   }
+}
+
+/**
+ * Threads for the row passes of large splittable text (src/node/parallelScan.ts; it reads small
+ * files with one thread anyway). One core stays with the editor: its host, renderer and this
+ * worker's own bookkeeping, so a two-core machine reads with this worker alone.
+ */
+function parallelScanner(request: FitRequest): ReturnType<typeof createParallelScanner> | undefined {
+  const threads = request.scanThreads ?? availableParallelism() - 1;
+  return threads >= 2 ? createParallelScanner(request.path, request.path, { workers: threads }) : undefined;
 }
 
 /** The columns, when the table's head can still be read, so the panel can offer another label. */

@@ -14,6 +14,8 @@ export interface FitRequest {
   options: Partial<FitOptions>;
   /** Analyse this many leading bytes first and post that provisional result, when the file is larger. */
   provisionalBytes: number;
+  /** Threads for the row passes of large text files; default one per core but one (see worker.ts). */
+  scanThreads?: number;
 }
 
 /** A DataError (or an unexpected failure) in a form that survives structured cloning. */

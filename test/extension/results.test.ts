@@ -103,6 +103,7 @@ describe('results in the separability editor', () => {
 
   it('shows the editor with its panel (screenshot in test-output/)', async function () {
     const api = await scatterwise();
+    await closeAllEditors(); // a fresh editor, so that its panel starts from the top
     const answer = await openAndWait(api, sampleFile('pump-faults.csv'));
     assert.ok(isFinalResult(answer));
     await new Promise((resolve) => setTimeout(resolve, 2000)); // let the panel draw
