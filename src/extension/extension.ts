@@ -4,10 +4,12 @@
  */
 import * as vscode from 'vscode';
 import type { ToPanel } from '../shared/messages';
+import { registerCompareCommands } from './compareCommands';
 import { FitWorkers } from './fitWorkers';
 import { openFile } from './openFileCommand';
 import { PostLog, type PostedMessage } from './postLog';
 import { ResultCache } from './resultCache';
+import { registerSaveRoles } from './saveRoles';
 import { EDITOR_VIEW_TYPE, SeparabilityEditorProvider } from './separabilityEditor';
 
 /** What `activate()` returns; used by the tests in test/extension to watch the panels. */
@@ -55,6 +57,17 @@ export function activate(context: vscode.ExtensionContext): ScatterwiseApi {
         void vscode.window.showErrorMessage(`Scatterwise: ${error instanceof Error ? error.message : String(error)}`);
       }),
     ),
+    registerCompareCommands({
+      workers,
+      output,
+      log,
+      present: (uri, message) => {
+        const session = provider.sessionFor(uri);
+        session?.present(message);
+        return session !== undefined;
+      },
+    }),
+    registerSaveRoles({ output, log }),
     vscode.workspace.onDidChangeConfiguration((event) => {
       if (event.affectsConfiguration('scatterwise')) provider.refitAll();
     }),

@@ -4,6 +4,8 @@
 //
 //   node test/extension/runInServer.mjs [--folder sample-workspace] [--grep PATTERN] [--port N]
 //
+// The folder is copied into a temporary directory and the copy is opened.
+//
 // Build first (`node esbuild.mjs`): it needs dist/extension.js, dist/worker.js, dist/webview.js
 // and out/test/extension/index.js. Tests may ask for a screenshot of the workbench by fetching
 // $SCATTERWISE_SCREENSHOT_URL?name=NAME; the image goes to test-output/NAME.png.
@@ -21,7 +23,7 @@ const argument = (name, fallback) => {
   const i = process.argv.indexOf(`--${name}`);
   return i > 0 && process.argv[i + 1] !== undefined ? process.argv[i + 1] : fallback;
 };
-const folder = path.resolve(root, argument('folder', 'sample-workspace'));
+const sourceFolder = path.resolve(root, argument('folder', 'sample-workspace'));
 const serverDir = path.join(root, '.vscode-test-server');
 const outputDir = path.join(root, 'test-output');
 const testsEntry = path.join(root, 'out/test/extension/index.js');
@@ -66,6 +68,10 @@ fs.writeFileSync(
   }),
 );
 fs.writeFileSync(path.join(scratch, 'config.yaml'), 'auth: none\n');
+// The tests get a copy of the workspace folder, so what they write there (a project config, a git
+// repository) never touches the repository's own sample workspace; the copy goes with the scratch.
+const folder = path.join(scratch, 'workspace', path.basename(sourceFolder));
+fs.cpSync(sourceFolder, folder, { recursive: true });
 fs.mkdirSync(outputDir, { recursive: true });
 
 // Screenshots on request of the tests (they run in the extension host, the page is here).

@@ -141,22 +141,26 @@ function columnSentences(deltas: ReportDeltas): NotableChange[] {
   return out;
 }
 
-/** Why one class's recall may have moved: its own rows, or the balance of the others under empirical priors. */
+/** Why one class's recall may have moved: the features, its own rows, or the balance of the others. */
 function recallReason(deltas: ReportDeltas, label: string): string {
-  const own = deltas.classes.kept.find((c) => c.label === label);
-  if (own && own.base > 0 && Math.abs(own.head - own.base) / own.base >= 0.05) {
-    return `: its rows went from ${formatCount(own.base)} to ${formatCount(own.head)}${deltas.priors === 'empirical' ? ', and with empirical priors a class that shrinks is predicted less often' : ''}`;
-  }
-  const others = deltas.classes.kept.filter((c) => c.label !== label && c.base > 0 && Math.abs(c.head - c.base) / c.base >= 0.05);
-  if (others.length > 0 || deltas.classes.lost.length > 0 || deltas.classes.gained.length > 0) {
-    return `: the other classes changed (${[...others.map((c) => `'${c.label}' ${formatCount(c.base)} → ${formatCount(c.head)} rows`), ...deltas.classes.lost.map((c) => `'${c.label}' lost`), ...deltas.classes.gained.map((c) => `'${c.label}' new`)].join(', ')})`;
-  }
+  const reasons: string[] = [];
   const features = [
     ...(deltas.features.added.length > 0 ? [`${quoted(deltas.features.added)} added`] : []),
     ...(deltas.features.removed.length > 0 ? [`${quoted(deltas.features.removed)} no longer used`] : []),
   ];
-  if (features.length > 0) return `: the features changed (${features.join('; ')})`;
-  return '';
+  if (features.length > 0) reasons.push(`the features changed (${features.join('; ')})`);
+  const changed = (c: { base: number; head: number }): boolean => c.base > 0 && Math.abs(c.head - c.base) / c.base >= 0.05;
+  const own = deltas.classes.kept.find((c) => c.label === label);
+  if (own && changed(own)) {
+    reasons.push(`its rows went from ${formatCount(own.base)} to ${formatCount(own.head)}${deltas.priors === 'empirical' ? ' (with empirical priors a class that shrinks is predicted less often, one that grows more often)' : ''}`);
+  }
+  const others = [
+    ...deltas.classes.kept.filter((c) => c.label !== label && changed(c)).map((c) => `'${c.label}' ${formatCount(c.base)} → ${formatCount(c.head)} rows`),
+    ...deltas.classes.lost.map((c) => `'${c.label}' lost`),
+    ...deltas.classes.gained.map((c) => `'${c.label}' new`),
+  ];
+  if (others.length > 0) reasons.push(`the other classes changed (${others.join(', ')})`);
+  return reasons.length > 0 ? `: ${reasons.join('; ')}` : '';
 }
 
 function accuracySentences(deltas: ReportDeltas): NotableChange[] {
