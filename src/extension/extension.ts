@@ -4,6 +4,7 @@
  */
 import * as vscode from 'vscode';
 import type { ToPanel } from '../shared/messages';
+import { registerGenerateScript } from './commands/generateScript';
 import { registerCompareCommands } from './compareCommands';
 import { FitWorkers } from './fitWorkers';
 import { openFile } from './openFileCommand';
@@ -14,7 +15,7 @@ import { EDITOR_VIEW_TYPE, SeparabilityEditorProvider } from './separabilityEdit
 
 /** What `activate()` returns; used by the tests in test/extension to watch the panels. */
 export interface ScatterwiseApi {
-  /** Messages posted to the panels of this file so far (the last 64), oldest first. */
+  /** Messages posted to the panels of this file so far, oldest first: the last 64, a run of progress messages kept as its latest. */
   messagesFor(uri: vscode.Uri): readonly ToPanel[];
   /** Fires on every message posted to a panel. */
   onDidPost: vscode.Event<PostedMessage>;
@@ -57,6 +58,7 @@ export function activate(context: vscode.ExtensionContext): ScatterwiseApi {
         void vscode.window.showErrorMessage(`Scatterwise: ${error instanceof Error ? error.message : String(error)}`);
       }),
     ),
+    registerGenerateScript(workers),
     registerCompareCommands({
       workers,
       output,
