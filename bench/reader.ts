@@ -16,15 +16,16 @@
  *   node esbuild.mjs && node out/bench/reader.js --mb 50        (quick, for CI)
  */
 import { spawnSync } from 'node:child_process';
-import { closeSync, createReadStream, existsSync, mkdirSync, openSync, readSync, statSync, writeSync } from 'node:fs';
+import { closeSync, createReadStream, existsSync, mkdirSync, openSync, readSync, statSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { parse } from 'csv-parse';
 import { MomentsAccumulator } from '../src/core/moments';
 import { inspectTable, scanTable } from '../src/core/read/index';
 import { openFileSource } from '../src/node/fileSource';
+import { PUMP_FAULTS, writePumpCsv } from './pumpTable';
 
 const FEATURES = 20;
-const LABELS = ['healthy', 'bearing, outer race', 'cavitation', 'impeller imbalance', 'seal leak'];
+const LABELS = PUMP_FAULTS.slice(0, 5);
 const KINDS = ['floor', 'csv-parse', 'scan', 'parquet', 'parquet-1'] as const;
 type Kind = (typeof KINDS)[number];
 
@@ -40,33 +41,9 @@ function argument(name: string, fallback: string): string {
   return at >= 0 && at + 1 < process.argv.length ? process.argv[at + 1] : fallback;
 }
 
-/** Writes the CSV (deterministic: Park–Miller generator, Box–Muller normals). */
+/** Writes the CSV: the benchmarks' pump table (pumpTable.ts), 20 features and 5 classes. */
 function generateCsv(path: string, bytes: number): void {
-  let state = 42;
-  const uniform = (): number => {
-    state = (state * 48271) % 2147483647;
-    return state / 2147483647;
-  };
-  const normal = (): number => Math.sqrt(-2 * Math.log(uniform())) * Math.cos(2 * Math.PI * uniform());
-  const scale = Array.from({ length: FEATURES }, (_, j) => 10 ** (((j % 8) * 2) - 8));
-  const file = openSync(path, 'w');
-  const header = [...Array.from({ length: FEATURES }, (_, j) => `feature_${j + 1}`), 'fault'].join(',') + '\n';
-  writeSync(file, header);
-  let written = header.length;
-  let row = 0;
-  while (written < bytes) {
-    const lines: string[] = [];
-    for (let i = 0; i < 10_000; i++, row++) {
-      const k = row % LABELS.length;
-      const cells = scale.map((s, j) => ((j % 3 === 0 ? k : 0) + 2 + normal()) * s);
-      const label = LABELS[k].includes(',') ? `"${LABELS[k]}"` : LABELS[k];
-      lines.push(cells.map((value) => value.toPrecision(6)).join(',') + ',' + label);
-    }
-    const text = lines.join('\n') + '\n';
-    writeSync(file, text);
-    written += Buffer.byteLength(text);
-  }
-  closeSync(file);
+  writePumpCsv(path, { features: FEATURES, classes: LABELS.length, bytes });
 }
 
 /** The Parquet copies: DuckDB's default row groups, and one row group for the whole table. */

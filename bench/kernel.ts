@@ -1,0 +1,94 @@
+/**
+ * The wide-table figures of the side-by-side benchmark, measured in a child process:
+ *  - the moments update (MomentsAccumulator: per-class shift, 64-row blocks, the blocked rank-k
+ *    cross-product, Chan merges) over n rows of d features held in memory, against numpy's
+ *    X.T @ X on the very same rows (bench/alternatives/cross_product.py reads the file written here);
+ *  - the fit from moments at d = 1000, K = 10: solveLda alone (the discriminants, the target) and
+ *    fitMoments (everything a report takes from the moments: LDA, PCA, the tests with Box's M).
+ * Rows: uniform values with small class shifts on every third feature, K classes in turn, from the
+ * Park–Miller generator, written once as little-endian float64 (n × d, row-major).
+ */
+import { closeSync, existsSync, openSync, readFileSync, writeSync } from 'node:fs';
+import { solveLda } from '../src/core/lda';
+import { MomentsAccumulator } from '../src/core/moments';
+import { fitMoments } from '../src/core/pipeline/fitMoments';
+import { resolveOptions } from '../src/core/pipeline/options';
+
+export function writeKernelRows(path: string, n: number, d: number, classes: number): void {
+  if (existsSync(path)) return;
+  let state = 7;
+  const file = openSync(path, 'w');
+  const block = new Float64Array(1000 * d);
+  for (let start = 0; start < n; start += 1000) {
+    const rows = Math.min(1000, n - start);
+    for (let r = 0; r < rows; r++) {
+      const k = (start + r) % classes;
+      for (let j = 0; j < d; j++) {
+        state = (state * 48271) % 2147483647;
+        block[r * d + j] = state / 2147483647 + (j % 3 === 0 ? 0.05 * k : 0);
+      }
+    }
+    writeSync(file, new Uint8Array(block.buffer, 0, rows * d * 8));
+  }
+  closeSync(file);
+}
+
+function readRows(path: string, n: number, d: number): Float64Array {
+  const bytes = readFileSync(path);
+  const values = new Float64Array(n * d);
+  new Uint8Array(values.buffer).set(bytes.subarray(0, n * d * 8));
+  return values;
+}
+
+const median = (values: number[]): number => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)]!;
+
+export interface KernelResult {
+  n: number;
+  d: number;
+  /** Median seconds of the moments update over all n rows. */
+  momentsSeconds: number;
+  momentsCpuSeconds: number;
+  /** With `fit`: median seconds of solveLda and of fitMoments on the moments. */
+  solveLdaSeconds?: number;
+  fitMomentsSeconds?: number;
+}
+
+/** Times the moments update (and with `fit` the fit from its moments); prints nothing. */
+export function measureKernel(path: string, n: number, d: number, classes: number, fit: boolean): KernelResult {
+  const values = readRows(path, n, d);
+  const ids = Int32Array.from({ length: n }, (_, i) => i % classes);
+  const labels = Array.from({ length: classes }, (_, k) => `class ${k + 1}`);
+  const features = Array.from({ length: d }, (_, j) => `feature_${j + 1}`);
+  // Warm-up on a slice, so the timed runs see optimised code, as a long pass does.
+  new MomentsAccumulator(features).add(values, ids, Math.min(n, 2000), labels);
+  const wall: number[] = [];
+  const cpu: number[] = [];
+  let accumulator = new MomentsAccumulator(features);
+  for (let round = 0; round < 3; round++) {
+    accumulator = new MomentsAccumulator(features);
+    const started = performance.now();
+    const used = process.cpuUsage();
+    accumulator.add(values, ids, n, labels);
+    accumulator.result();
+    cpu.push(process.cpuUsage(used).user / 1e6);
+    wall.push((performance.now() - started) / 1000);
+  }
+  const result: KernelResult = { n, d, momentsSeconds: median(wall), momentsCpuSeconds: median(cpu) };
+  if (fit) {
+    const moments = accumulator.result();
+    const options = resolveOptions({});
+    const lda: number[] = [];
+    const whole: number[] = [];
+    for (let round = 0; round < 3; round++) {
+      let started = performance.now();
+      solveLda(moments, { solver: options.solver, priors: options.priors });
+      lda.push((performance.now() - started) / 1000);
+      started = performance.now();
+      fitMoments(moments, options);
+      whole.push((performance.now() - started) / 1000);
+    }
+    result.solveLdaSeconds = median(lda);
+    result.fitMomentsSeconds = median(whole);
+  }
+  return result;
+}
