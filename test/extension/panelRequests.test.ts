@@ -4,7 +4,8 @@
  */
 import * as assert from 'node:assert/strict';
 import * as vscode from 'vscode';
-import { EDITOR_VIEW_TYPE, closeAllEditors, openAndWait, sampleFile, scatterwise, waitUntil } from './helpers';
+import type { InitMessage, ResultMessage } from '../../src/shared/messages';
+import { EDITOR_VIEW_TYPE, closeAllEditors, isFinalResult, nextMessage, openAndWait, sampleFile, scatterwise, waitUntil } from './helpers';
 
 describe('panel requests', () => {
   afterEach(closeAllEditors);
@@ -48,6 +49,23 @@ describe('panel requests', () => {
     await new Promise((resolve) => setTimeout(resolve, 300));
     assert.equal(api.messagesFor(uri).length, before);
     assert.ok(!(vscode.window.activeTextEditor?.document.uri.toString() === uri.toString()), 'nothing was revealed');
+  });
+
+  it('a panel hidden and shown again is greeted again and gets the result replayed', async () => {
+    const api = await scatterwise();
+    const uri = sampleFile('pump-faults.csv');
+    const first = await openAndWait(api, uri);
+    assert.equal(first.type, 'result');
+    // Another editor in the same group hides the panel; its page is dropped (no retained context).
+    await vscode.window.showTextDocument(sampleFile('seal-leak.csv'), { preview: false });
+    await new Promise((resolve) => setTimeout(resolve, 500));
+    const hiddenAt = api.messagesFor(uri).length;
+    await vscode.commands.executeCommand('vscode.openWith', uri, EDITOR_VIEW_TYPE);
+    const init = await nextMessage(api, uri, (message): message is InitMessage => message.type === 'init', 30_000, hiddenAt);
+    assert.equal(init.fileName, 'pump-faults.csv');
+    const replayed = await nextMessage(api, uri, isFinalResult, 30_000, hiddenAt);
+    assert.deepEqual(replayed.report.discriminant.eigenvalues, (first as ResultMessage).report.discriminant.eigenvalues);
+    assert.equal(api.workerCount(), 0, 'replayed, not refitted');
   });
 
   it('deliver reports a file that no editor has open', async () => {
