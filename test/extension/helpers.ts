@@ -83,3 +83,16 @@ export async function screenshot(name: string): Promise<string | undefined> {
   if (!response.ok) throw new Error(`screenshot failed: ${response.status} ${await response.text()}`);
   return ((await response.json()) as { file: string }).file;
 }
+
+/**
+ * Clicks, with the mouse, the first visible element of the workbench that matches `selector` (and
+ * holds `text`); false when the host is not run by runInServer.mjs.
+ */
+export async function clickInWorkbench(selector: string, text?: string): Promise<boolean> {
+  const service = process.env.SCATTERWISE_WORKBENCH_URL;
+  if (!service) return false;
+  const query = new URLSearchParams({ selector, ...(text ? { text } : {}) });
+  const response = await fetch(`${service}/click?${query}`);
+  if (!response.ok) throw new Error(`click on ${selector} failed: ${response.status} ${await response.text()}`);
+  return true;
+}

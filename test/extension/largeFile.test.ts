@@ -12,6 +12,7 @@ import * as vscode from 'vscode';
 import type { ProgressMessage, ToPanel } from '../../src/shared/messages';
 import {
   EDITOR_VIEW_TYPE,
+  clickInWorkbench,
   closeAllEditors,
   isError,
   isFinalResult,
@@ -112,6 +113,20 @@ describe('a 200 MB table', function () {
       clearInterval(sampler);
     }
     assert.equal(most, 1, 'never two workers for one file');
+    await closeAllEditors();
+  });
+
+  it("the progress notification's Cancel button stops the fit", async function () {
+    const api = await scatterwise();
+    const skip = api.messagesFor(uri).length;
+    await vscode.commands.executeCommand('vscode.openWith', uri, EDITOR_VIEW_TYPE);
+    await nextMessage(api, uri, isAnalysisProgress, 60_000, skip);
+    // The notification appears once a fit has run for a moment; its button is a real click.
+    if (!(await clickInWorkbench('.notifications-toasts .monaco-button', 'Cancel'))) this.skip();
+    const cancelled = await nextMessage(api, uri, isError, 15_000, skip);
+    assert.equal(cancelled.code, 'cancelled');
+    await waitUntil(() => api.workerCount() === 0, 5_000, 'the worker to exit');
+    assert.ok(!api.messagesFor(uri).slice(skip).some(isFinalResult), 'the fit did not finish');
     await closeAllEditors();
   });
 

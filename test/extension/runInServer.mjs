@@ -8,7 +8,8 @@
 //
 // Build first (`node esbuild.mjs`): it needs dist/extension.js, dist/worker.js, dist/webview.js
 // and out/test/extension/index.js. Tests may ask for a screenshot of the workbench by fetching
-// $SCATTERWISE_SCREENSHOT_URL?name=NAME; the image goes to test-output/NAME.png.
+// $SCATTERWISE_SCREENSHOT_URL?name=NAME (the image goes to test-output/NAME.png), and for a real
+// click in the workbench at $SCATTERWISE_WORKBENCH_URL/click?selector=CSS&text=TEXT.
 import { spawn, spawnSync } from 'node:child_process';
 import * as fs from 'node:fs';
 import * as http from 'node:http';
@@ -74,12 +75,23 @@ const folder = path.join(scratch, 'workspace', path.basename(sourceFolder));
 fs.cpSync(sourceFolder, folder, { recursive: true });
 fs.mkdirSync(outputDir, { recursive: true });
 
-// Screenshots on request of the tests (they run in the extension host, the page is here).
+// The tests run in the extension host; the page is here. They may ask, over loopback, for
+//   /screenshot?name=NAME             a PNG of the workbench in test-output/NAME.png
+//   /click?selector=CSS[&text=TEXT]   a real click on the first visible match (e.g. a notification's button)
 let page;
 const shots = http.createServer(async (request, response) => {
-  const name = new URL(request.url, 'http://localhost').searchParams.get('name') ?? 'workbench';
-  const file = path.join(outputDir, `${name.replace(/[^\w.-]+/g, '_')}.png`);
+  const url = new URL(request.url, 'http://localhost');
   try {
+    if (url.pathname === '/click') {
+      let target = page.locator(url.searchParams.get('selector') ?? 'body');
+      const text = url.searchParams.get('text');
+      if (text) target = target.filter({ hasText: text });
+      await target.first().click({ timeout: 10_000 });
+      response.writeHead(200, { 'content-type': 'application/json' }).end('{}');
+      return;
+    }
+    const name = url.searchParams.get('name') ?? 'workbench';
+    const file = path.join(outputDir, `${name.replace(/[^\w.-]+/g, '_')}.png`);
     await page.screenshot({ path: file });
     response.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify({ file }));
   } catch (error) {
@@ -103,6 +115,7 @@ const server = spawn(
       // No look-ups of an extension gallery: these machines reach only npm and Debian.
       EXTENSIONS_GALLERY: process.env.EXTENSIONS_GALLERY || '{"serviceUrl":""}',
       SCATTERWISE_SCREENSHOT_URL: `http://127.0.0.1:${shotPort}/screenshot`,
+      SCATTERWISE_WORKBENCH_URL: `http://127.0.0.1:${shotPort}`,
       MOCHA_GREP: argument('grep', process.env.MOCHA_GREP ?? ''),
     },
   },
