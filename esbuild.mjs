@@ -49,6 +49,6 @@ await Promise.all([
     entryPoints: [...filesBelow('test', /\.ts$/), ...filesBelow('bench', /\.ts$/)],
     outbase: '.',
     outdir: 'out',
-    external: ['vscode', 'mocha', 'playwright-core', '@duckdb/node-api', '@vscode/test-electron'],
+    external: ['vscode', 'mocha', 'playwright-core', '@duckdb/node-api', '@vscode/test-electron', 'esbuild'],
   }),
 ]);

@@ -21,7 +21,7 @@ await esbuild.build({
   outbase: '.',
   outdir: 'out',
   logLevel: 'warning',
-  external: ['vscode', 'mocha', 'playwright-core', '@duckdb/node-api', '@vscode/test-electron'],
+  external: ['vscode', 'mocha', 'playwright-core', '@duckdb/node-api', '@vscode/test-electron', 'esbuild'],
 });
 const outputs = files.map((f) => 'out/' + f.replace(/\.ts$/, '.js'));
 const run = spawnSync(process.execPath, ['node_modules/mocha/bin/mocha.js', '--enable-source-maps', ...mochaArgs, ...outputs], { stdio: 'inherit' });

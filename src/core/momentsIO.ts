@@ -24,7 +24,7 @@
  *   cubic   = Σ‖z‖²z = C − T·ȳ − 2·S₂ȳ + 2n·c·ȳ
  *   quartic = Σ‖z‖⁴  = Σq² + 4·ȳᵀS₂ȳ − 4·ȳᵀC + 2c·T − 3n·c²
  */
-import { parse } from 'csv-parse/sync';
+import { parse } from 'csv-parse/browser/esm/sync';
 import { DataError } from './errors';
 import type { ClassMoments, Moments } from './moments';
 import { mergeMoments, momentsFromJSON } from './moments';

@@ -3,7 +3,7 @@
  * and for the rows the fast path leaves to it (doubled quotes, quoted line breaks, stray quotes).
  * Its errors become DataErrors naming the file, line and column.
  */
-import { CsvError, parse } from 'csv-parse/sync';
+import { CsvError, parse } from 'csv-parse/browser/esm/sync';
 import { DataError } from '../errors';
 
 export interface CsvDialect {
