@@ -1,7 +1,7 @@
 // Bundles every target with one small helper: the shipped bundles go to dist/, the test and
 // benchmark bundles to out/. Type-checking is `npm run typecheck` (tsc --noEmit), run before this.
 import * as esbuild from 'esbuild';
-import { readdirSync, statSync } from 'node:fs';
+import { readdirSync, rmSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 
 const production = process.argv.includes('--production');
@@ -31,6 +31,9 @@ function build(options) {
 }
 
 const node = { platform: 'node', format: 'cjs', target: 'node20' };
+
+// A deleted test must not keep running from a stale bundle.
+rmSync('out', { recursive: true, force: true });
 
 await Promise.all([
   // The VS Code host: `vscode` is provided by the editor at run time.
