@@ -20,6 +20,7 @@ import {
 import type { FitJob, FitWorkers } from './fitWorkers';
 import { baseName, exportFromPanel, revealRow, routedCommands, runRoutedCommand } from './panelActions';
 import type { PostLog } from './postLog';
+import { ProgressNotification } from './progressNotification';
 import { projectSettingsFor } from './projectConfig';
 import type { FileStamp, ResultCache } from './resultCache';
 import { readSettings } from './settings';
@@ -63,6 +64,7 @@ export class FitSession implements vscode.Disposable {
   private generation = 0;
   private latest: LatestState = {};
   private rerunTimer: ReturnType<typeof setTimeout> | undefined;
+  private notification: ProgressNotification | undefined;
   private disposed = false;
 
   constructor(
@@ -224,7 +226,9 @@ export class FitSession implements vscode.Disposable {
     );
     this.job = job;
     void job.ended.then(() => this.settled(job));
-    this.showNotification(job, generation);
+    this.notification = new ProgressNotification(`Scatterwise: analysing ${this.fileName}`, job.ended, this.services.notificationDelay, () => {
+      if (this.job === job) this.cancel('user');
+    });
   }
 
   /** The job has its answer (or ended): closing the editor now has nothing to stop. */
@@ -281,38 +285,10 @@ export class FitSession implements vscode.Disposable {
     if (after && after.size === stamp.size && after.mtimeMs === stamp.modified) this.services.cache.rememberHash(stamp, sha256);
   }
 
-  private showNotification(job: FitJob, generation: number): void {
-    const timer = setTimeout(() => {
-      if (generation !== this.generation || this.job !== job) return;
-      // The notification lasts until the worker has exited, whatever ended it.
-      void vscode.window.withProgress(
-        { location: vscode.ProgressLocation.Notification, title: `Scatterwise: analysing ${this.fileName}`, cancellable: true },
-        (progress, token) => {
-          token.onCancellationRequested(() => {
-            if (this.job === job) this.cancel('user');
-          });
-          let shown = 0;
-          const update = (phase: string, fraction: number): void => {
-            const percent = phase === 'analysis' ? Math.round(fraction * 100) : 0;
-            progress.report({ increment: Math.max(0, percent - shown), message: phase === 'analysis' ? `${percent}% of the bytes` : phase });
-            shown = Math.max(shown, percent);
-          };
-          if (this.latest.progress) update(this.latest.progress.phase, this.latest.progress.fraction);
-          this.notify = update;
-          return job.ended.then(() => {
-            if (this.notify === update) this.notify = undefined;
-          });
-        },
-      );
-    }, this.services.notificationDelay);
-    void job.ended.then(() => clearTimeout(timer));
-  }
-
-  private notify: ((phase: string, fraction: number) => void) | undefined;
 
   private progress(phase: string, fraction: number): void {
     this.latest.progress = { type: 'progress', phase, fraction };
-    this.notify?.(phase, fraction);
+    this.notification?.report(phase, fraction);
     this.broadcast(this.latest.progress);
   }
 
