@@ -6,6 +6,7 @@
 import { closeSync, fsyncSync, openSync, realpathSync, renameSync, rmSync, statSync, writeSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { DataError } from '../core/errors';
+import type { CommandIO } from './command';
 import type { ByteSource } from '../core/source';
 import { openFileSource } from '../node/fileSource';
 
@@ -118,4 +119,22 @@ export class OutputFile {
     }
     rmSync(this.temporary, { force: true });
   }
+}
+
+/** Writes `text` whole to `path` through an OutputFile: renamed into place, or removed on failure. */
+export function writeWholeFile(path: string, text: string): void {
+  const out = new OutputFile(path);
+  try {
+    out.write(text);
+    out.commit();
+  } catch (error) {
+    out.discard();
+    throw error;
+  }
+}
+
+/** Writes a command's output to the `--out` file when one was given, otherwise to stdout. */
+export function writeOutput(io: Pick<CommandIO, 'stdout'>, outPath: string | undefined, text: string): void {
+  if (outPath === undefined) io.stdout(text);
+  else writeWholeFile(outPath, text);
 }

@@ -24,7 +24,7 @@ import type { OptionSpec, ParsedArgs } from '../args';
 import { UsageError, valueOf } from '../args';
 import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
-import { checkOutputs, openInput, OutputFile } from '../files';
+import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 import { asGiven } from '../namedSource';
 import { CONFIG_OPTION_SPECS, loadProjectConfig, settingsFor } from '../projectOptions';
@@ -188,17 +188,10 @@ async function runCompare(args: ParsedArgs, io: CommandIO): Promise<number> {
   const files = since !== undefined ? await compareChanged(since, args, io, config, rules) : await compareTwo(args, io, config, rules);
   const set = comparisonSet(files);
   const text = format === 'json' ? comparisonToJson(set) : format === 'markdown' ? comparisonToMarkdown(set) : comparisonToText(set);
-  if (outPath !== undefined) {
-    if (since !== undefined) for (const file of files) if (file.status !== 'removed') checkOutputs(io.cwd, file.head.name, [{ option: 'out', path: outPath }]);
-    const out = new OutputFile(outPath);
-    try {
-      out.write(text);
-      out.commit();
-    } catch (error) {
-      out.discard();
-      throw error;
-    }
-  } else io.stdout(text);
+  if (outPath !== undefined && since !== undefined) {
+    for (const file of files) if (file.status !== 'removed') checkOutputs(io.cwd, file.head.name, [{ option: 'out', path: outPath }]);
+  }
+  writeOutput(io, outPath, text);
   return set.passed ? EXIT_OK : EXIT_GATE_FAILED;
 }
 

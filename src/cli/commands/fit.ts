@@ -13,7 +13,7 @@ import type { OptionSpec, ParsedArgs } from '../args';
 import { UsageError, valueOf } from '../args';
 import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
-import { checkOutputs, openInput, OutputFile } from '../files';
+import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 import { createParallelScanner } from '../../node/parallelScan';
 import { ScoresFile } from '../scoresFile';
@@ -75,16 +75,7 @@ async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
     });
     scores?.finish(report.rows.total, report.discriminant.eigenvalues.length);
     const text = renderReport(report, format);
-    if (outPath !== undefined) {
-      const out = new OutputFile(outPath);
-      try {
-        out.write(text);
-        out.commit();
-      } catch (error) {
-        out.discard();
-        throw error;
-      }
-    } else io.stdout(text);
+    writeOutput(io, outPath, text);
     return EXIT_OK;
   } catch (error) {
     scores?.discard();

@@ -17,27 +17,12 @@ import type { OptionSpec, ParsedArgs } from '../args';
 import { UsageError, valueOf } from '../args';
 import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
-import { checkOutputs, openInput, OutputFile } from '../files';
+import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 import type { ReportFormat } from './fit';
 
 /** The fit options that shape moments: roles, missing values, reading. */
 const MOMENT_OPTION_NAMES = new Set(['label', 'features', 'exclude', 'missing', 'delimiter', 'no-header', 'skip-ragged-rows']);
-
-function writeOutput(io: CommandIO, path: string | undefined, text: string): void {
-  if (path === undefined) {
-    io.stdout(text);
-    return;
-  }
-  const out = new OutputFile(path);
-  try {
-    out.write(text);
-    out.commit();
-  } catch (error) {
-    out.discard();
-    throw error;
-  }
-}
 
 async function runMoments(args: ParsedArgs, io: CommandIO): Promise<number> {
   if (args.positionals.length !== 1) {

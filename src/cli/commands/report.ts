@@ -19,7 +19,7 @@ import type { OptionSpec, ParsedArgs } from '../args';
 import { UsageError, valueOf } from '../args';
 import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
-import { checkOutputs, openInput, OutputFile } from '../files';
+import { checkOutputs, openInput, writeOutput, writeWholeFile } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 import { CONFIG_OPTION_SPECS, loadProjectConfig, settingsFor } from '../projectOptions';
 
@@ -41,17 +41,6 @@ function plotStems(inputs: readonly string[]): string[] {
 /** A link target in Markdown: a relative path with `/`, each segment percent-encoded. */
 function markdownLink(fromFolder: string, file: string): string {
   return path.relative(fromFolder, file).split(path.sep).map(encodeURIComponent).join('/');
-}
-
-function writeFile(target: string, text: string): void {
-  const out = new OutputFile(target);
-  try {
-    out.write(text);
-    out.commit();
-  } catch (error) {
-    out.discard();
-    throw error;
-  }
 }
 
 function plotsFolder(cwd: string, given: string): string {
@@ -116,7 +105,7 @@ async function runReport(args: ParsedArgs, io: CommandIO): Promise<number> {
       for (const plot of reportPlots(report)) {
         const target = path.join(folder, `${stems[i]}-${plot.id}.svg`);
         for (const input of inputs) checkOutputs(io.cwd, input, [{ option: 'plots', path: target }]);
-        writeFile(target, plot.svg);
+        writeWholeFile(target, plot.svg);
         links[i]!.push({ title: plot.title, link: markdownLink(linkFrom, target) });
       }
     });
@@ -128,8 +117,7 @@ async function runReport(args: ParsedArgs, io: CommandIO): Promise<number> {
       : format === 'html'
         ? toHtml(reports, reports.length === 1 ? `Scatterwise report: ${reports[0]!.source.name}` : `Scatterwise report of ${reports.length} data files`)
         : pageMarkdown(reports, links);
-  if (outPath !== undefined) writeFile(outPath, text);
-  else io.stdout(text);
+  writeOutput(io, outPath, text);
   return EXIT_OK;
 }
 

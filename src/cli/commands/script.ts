@@ -15,7 +15,7 @@ import type { OptionSpec, ParsedArgs } from '../args';
 import { UsageError, valueOf } from '../args';
 import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
-import { checkOutputs, openInput, OutputFile } from '../files';
+import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 
 const SCRIPT_SPECS: readonly OptionSpec[] = [
@@ -72,18 +72,7 @@ async function runScript(args: ParsedArgs, io: CommandIO): Promise<number> {
   } finally {
     await source.close();
   }
-  if (outPath === undefined) {
-    io.stdout(text);
-    return EXIT_OK;
-  }
-  const out = new OutputFile(outPath);
-  try {
-    out.write(text);
-    out.commit();
-  } catch (error) {
-    out.discard();
-    throw error;
-  }
+  writeOutput(io, outPath, text);
   return EXIT_OK;
 }
 
