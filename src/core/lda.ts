@@ -26,7 +26,7 @@
 import { DataError } from './errors';
 import { sortLabels } from './labelOrder';
 import { describeDependent, formatCombination, revealRank, screenConstants, type ColumnFacts, type RankRevealed } from './ldaColumns';
-import { solveDirections } from './ldaDirections';
+import { solveDirections, type Directions } from './ldaDirections';
 import { conditionNumber } from './conditionNumber';
 import { EPSILON, principalSubmatrix } from './linalg';
 import type { Moments } from './moments';
@@ -52,7 +52,8 @@ export interface LdaWarning {
   columns?: string[];
 }
 
-export interface LdaSolution {
+/** The discriminant axes (Directions) have their r × k rows in the order of `features`. */
+export interface LdaSolution extends Directions {
   /** Names of the kept features (r), input order. */
   features: string[];
   /** Indices of the kept features into the moments' features, ascending. */
@@ -78,20 +79,6 @@ export interface LdaSolution {
   withinScatter: Float64Array;
   /** r × r */
   betweenScatter: Float64Array;
-  /** k = min(K − 1, rank) eigenvalues of S_B w = λ S_W w, descending. */
-  eigenvalues: Float64Array;
-  /** λ_i / Σλ: sums to 1. */
-  explainedRatio: Float64Array;
-  /** √(λ/(1 + λ)). */
-  canonicalCorrelations: Float64Array;
-  /** r × k row-major: wᵀ S_W w = n − K, sign rule applied (ldaDirections.ts). */
-  directions: Float64Array;
-  /** r × k: w times the pooled within-class standard deviation √(S_W,ii/(n − K)). */
-  standardizedCoefficients: Float64Array;
-  /** r × k: pooled within-class correlation of each feature with each score. */
-  structure: Float64Array;
-  /** K × k class means in score space. */
-  centroids: Float64Array;
   warnings: LdaWarning[];
   /** All input feature names (the moments' features), d. */
   inputFeatures: string[];

@@ -16,16 +16,21 @@
 import { EPSILON, solveLowerMatrix, solveLowerTransposeMatrix, thinSvd } from './linalg';
 import type { Whitening } from './ldaColumns';
 
+/** The discriminant axes; the r × k arrays are row-major with one row per kept feature. */
 export interface Directions {
-  /** k = number of σ above eps·max(n, r, K)·σ_max, ≤ min(K − 1, r). */
+  /** k = min(K − 1, rank) eigenvalues of S_B w = λ S_W w, descending: the σ² of the σ above eps·max(n, r, K)·σ_max. */
   eigenvalues: Float64Array;
+  /** λ_i / Σλ: sums to 1. */
   explainedRatio: Float64Array;
+  /** √(λ/(1 + λ)). */
   canonicalCorrelations: Float64Array;
-  /** r × k, rows in the whitening's (pivot) order. */
+  /** r × k: wᵀ S_W w = n − K, sign rule applied. */
   directions: Float64Array;
+  /** r × k: w times the pooled within-class standard deviation √(S_W,ii/(n − K)). */
   standardizedCoefficients: Float64Array;
+  /** r × k: pooled within-class correlation of each feature with each score. */
   structure: Float64Array;
-  /** K × k. */
+  /** K × k class means in score space. */
   centroids: Float64Array;
 }
 
@@ -44,6 +49,7 @@ function complementBasis(counts: number[]): Float64Array {
 /**
  * @param whitening the within-class scatter as solved, over the kept features (pivot order)
  * @param deviations K × d class mean minus overall mean (full feature set)
+ * @returns the axes with the rows of the r × k arrays in the whitening's (pivot) order
  */
 export function solveDirections(whitening: Whitening, deviations: Float64Array[], counts: number[], n: number): Directions {
   const K = counts.length;
