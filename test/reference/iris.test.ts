@@ -7,32 +7,11 @@
  */
 import * as assert from 'node:assert/strict';
 import type { FitOptions, FitReport } from '../../src/core/types';
-import { assertClose, assertCloseUpToColumnSign, assertExact, figure, loadReference, type Figure, type Reference } from './compare';
-import { fitFixture, pooledWithinCovariance, sampledRows } from './engine';
+import { assertClose, assertCloseUpToColumnSign, assertExact, figure, loadReference, type Reference } from './compare';
+import { checkMisclassified, fitFixture, loadReferenceCase, pooledWithinCovariance, sampledRows } from './engine';
 
 const IRIS = 'iris/iris.csv';
 const BASE: Partial<FitOptions> = { label: 'species', solver: 'exact', priors: 'empirical', cv: 'loo', pcaScale: 'covariance' };
-
-/** Rows (0-based) the reference misclassifies, and the posterior of the class it predicts. */
-function referenceMisclassified(posterior: Figure<number[][]>, truth: number[]): { row: number; predicted: number; posterior: number }[] {
-  const out: { row: number; predicted: number; posterior: number }[] = [];
-  posterior.value.forEach((p, row) => {
-    const predicted = p.indexOf(Math.max(...p));
-    if (predicted !== truth[row]) out.push({ row, predicted, posterior: p[predicted] });
-  });
-  return out;
-}
-
-function checkMisclassified(report: FitReport, posterior: Figure<number[][]>, truth: number[], what: string): void {
-  const expected = referenceMisclassified(posterior, truth);
-  assert.equal(report.misclassifiedTotal, expected.length, `${what}: misclassified count (${posterior.source})`);
-  const ours = [...report.misclassified].sort((a, b) => a.row - b.row);
-  assert.deepEqual(ours.map((m) => m.row), expected.map((m) => m.row), `${what}: misclassified rows (${posterior.source})`);
-  ours.forEach((m, i) => {
-    assert.equal(m.predicted, report.classes[expected[i].predicted].label, `${what}: row ${m.row} predicted class`);
-    assertClose(m.posterior, { source: posterior.source, value: expected[i].posterior }, `${what}: row ${m.row} posterior of the predicted class`);
-  });
-}
 
 describe('Iris: our analysis against numpy/scipy/scikit-learn and R MASS', function () {
   this.timeout(60_000);
@@ -42,11 +21,7 @@ describe('Iris: our analysis against numpy/scipy/scikit-learn and R MASS', funct
   let truth: number[];
 
   before(async function () {
-    py = loadReference('iris.python');
-    rr = loadReference('iris.r');
-    report = await fitFixture(IRIS, BASE);
-    // Class (index into the sorted labels) of every row, file order, as the references read it.
-    truth = (py.data as { classOfRow: number[] }).classOfRow;
+    ({ py, rr, truth, report } = await loadReferenceCase('iris', IRIS, BASE));
   });
 
   describe('default options (exact solver, empirical priors, leave-one-out)', function () {

@@ -7,28 +7,12 @@
  */
 import * as assert from 'node:assert/strict';
 import type { FitOptions, FitReport } from '../../src/core/types';
-import { assertClose, assertExact, figure, loadReference, type Figure, type Reference } from './compare';
-import { fitFixture } from './engine';
+import { assertClose, assertExact, figure, loadReference, type Reference } from './compare';
+import { checkMisclassified, fitFixture, loadReferenceCase } from './engine';
 
 const WINE = 'wine/wine.csv';
 const SCALED = 'wine/wine-ash-scaled.csv';
 const BASE: Partial<FitOptions> = { label: 'cultivar', solver: 'exact', priors: 'empirical', cv: 'loo' };
-
-/** Rows the reference misclassifies, with the posterior of the class it predicts. */
-function checkMisclassified(report: FitReport, posterior: Figure<number[][]>, truth: number[], what: string): void {
-  const expected: { row: number; predicted: number; posterior: number }[] = [];
-  posterior.value.forEach((p, row) => {
-    const predicted = p.indexOf(Math.max(...p));
-    if (predicted !== truth[row]) expected.push({ row, predicted, posterior: p[predicted] });
-  });
-  assert.equal(report.misclassifiedTotal, expected.length, `${what}: misclassified count (${posterior.source})`);
-  const ours = [...report.misclassified].sort((a, b) => a.row - b.row);
-  assert.deepEqual(ours.map((m) => m.row), expected.map((m) => m.row), `${what}: misclassified rows (${posterior.source})`);
-  ours.forEach((m, i) => {
-    assert.equal(m.predicted, report.classes[expected[i].predicted].label, `${what}: row ${m.row} predicted class`);
-    assertClose(m.posterior, { source: posterior.source, value: expected[i].posterior }, `${what}: row ${m.row} posterior of the predicted class`);
-  });
-}
 
 describe('Wine: our analysis against numpy/scipy/scikit-learn and R MASS', function () {
   this.timeout(60_000);
@@ -38,10 +22,7 @@ describe('Wine: our analysis against numpy/scipy/scikit-learn and R MASS', funct
   let report: FitReport;
 
   before(async function () {
-    py = loadReference('wine.python');
-    rr = loadReference('wine.r');
-    truth = (py.data as { classOfRow: number[] }).classOfRow;
-    report = await fitFixture(WINE, BASE);
+    ({ py, rr, truth, report } = await loadReferenceCase('wine', WINE, BASE));
   });
 
   it('uses every row, feature and class as the references do', function () {
