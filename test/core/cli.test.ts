@@ -1,26 +1,18 @@
 import { strict as assert } from 'node:assert';
-import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { existsSync, readdirSync, readFileSync, statSync, symlinkSync } from 'node:fs';
-import { dirname, join, resolve } from 'node:path';
+import { dirname, join } from 'node:path';
 import { UsageError } from '../../src/cli/args';
 import { describeFailure } from '../../src/cli/main';
 import { DataError } from '../../src/core/errors';
 import type { FitReport } from '../../src/core/types';
+import { buildCli, REPOSITORY_ROOT, runCli, type CliRun } from './cliProcess';
 import { pumpTable, toCsv, writeTemporary } from './generatedTables';
 
-const root = resolve(__dirname, '../../..');
-const cli = join(root, 'dist', 'cli.js');
+const root = REPOSITORY_ROOT;
 
-interface Run {
-  status: number | null;
-  stdout: string;
-  stderr: string;
-}
-
-function run(...args: string[]): Run {
-  const result = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: root, timeout: 60000 });
-  return { status: result.status, stdout: result.stdout, stderr: result.stderr };
+function run(...args: string[]): CliRun {
+  return runCli(args, { cwd: root, timeout: 60000 });
 }
 
 function sha256(path: string): string {
@@ -32,13 +24,7 @@ describe('scatterwise CLI (the real dist/cli.js in a child process)', function (
   this.timeout(120000);
 
   before(() => {
-    // Bundle the current sources the way esbuild.mjs does, so the test never runs a stale build.
-    const build = spawnSync(
-      process.execPath,
-      ['-e', "require('esbuild').build({entryPoints:{cli:'src/cli/main.ts'},bundle:true,platform:'node',format:'cjs',target:'node20',outdir:'dist',banner:{js:'#!/usr/bin/env node'},logLevel:'error'}).catch(()=>process.exit(1))"],
-      { cwd: root, encoding: 'utf8' },
-    );
-    assert.equal(build.status, 0, build.stderr);
+    buildCli();
   });
 
   it('--help, help fit and --version exit 0', () => {

@@ -5,21 +5,14 @@
  * here from the committed text, the words of each notable change, and the exit code of each gate.
  */
 import { strict as assert } from 'node:assert';
-import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { readFileSync, writeFileSync } from 'node:fs';
 import * as path from 'node:path';
 import type { FitReport } from '../../src/core/types';
+import { buildCli, REPOSITORY_ROOT, runCli, type CliRun } from './cliProcess';
 import { buildCaseRepository, classCounts, DATA_FILE, git, type CaseRepository } from './compareRepository';
 
-const root = path.resolve(__dirname, '../../..');
-const cli = path.join(root, 'dist', 'cli.js');
-
-interface Run {
-  status: number | null;
-  stdout: string;
-  stderr: string;
-}
+const root = REPOSITORY_ROOT;
 
 interface ComparisonJson {
   passed: boolean;
@@ -38,9 +31,8 @@ describe('scatterwise compare on a real git repository', function () {
   let repository: CaseRepository;
   const fits = new Map<string, FitReport>();
 
-  function run(args: readonly string[], cwd = repository.folder): Run {
-    const result = spawnSync(process.execPath, [cli, ...args], { cwd, encoding: 'utf8', timeout: 90_000 });
-    return { status: result.status, stdout: result.stdout, stderr: result.stderr };
+  function run(args: readonly string[], cwd = repository.folder): CliRun {
+    return runCli(args, { cwd, timeout: 90_000 });
   }
 
   function compareJson(args: readonly string[], expectedStatus: number): ComparisonJson {
@@ -63,12 +55,7 @@ describe('scatterwise compare on a real git repository', function () {
   }
 
   before(() => {
-    const build = spawnSync(
-      process.execPath,
-      ['-e', "require('esbuild').build({entryPoints:{cli:'src/cli/main.ts'},bundle:true,platform:'node',format:'cjs',target:'node20',outdir:'dist',banner:{js:'#!/usr/bin/env node'},logLevel:'error'}).catch(()=>process.exit(1))"],
-      { cwd: root, encoding: 'utf8' },
-    );
-    assert.equal(build.status, 0, build.stderr);
+    buildCli();
     repository = buildCaseRepository();
   });
 

@@ -7,10 +7,10 @@
  * The sample cases run in a temporary copy of the sample workspace (so plots land in a relative
  * folder); the compare cases in the git repository of compareRepository.ts.
  */
-import { spawnSync } from 'node:child_process';
 import { cpSync, mkdtempSync, rmSync } from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
+import { runCli } from './cliProcess';
 import { buildCaseRepository } from './compareRepository';
 
 export interface GoldenCase {
@@ -59,7 +59,7 @@ export function renderGoldenCases(cli: string, root: string): GoldenOutput[] {
     cpSync(path.join(root, 'sample-workspace', 'scatterwise.config.json'), path.join(samples, 'scatterwise.config.json'));
     return GOLDEN_CASES.map((c) => {
       const cwd = c.where === 'samples' ? samples : repository.folder;
-      const result = spawnSync(process.execPath, [cli, ...c.args], { cwd, encoding: 'utf8', timeout: 120_000 });
+      const result = runCli(c.args, { cli, cwd, timeout: 120_000 });
       return { name: c.name, exit: result.status, stdout: normalizeTimings(result.stdout), stderr: result.stderr };
     });
   } finally {

@@ -5,21 +5,14 @@
  * stops the run naming the key), and no data file is ever written.
  */
 import { strict as assert } from 'node:assert';
-import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { cpSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import * as os from 'node:os';
 import * as path from 'node:path';
 import type { FitReport } from '../../src/core/types';
+import { buildCli, REPOSITORY_ROOT, runCli, type CliRun } from './cliProcess';
 
-const root = path.resolve(__dirname, '../../..');
-const cli = path.join(root, 'dist', 'cli.js');
-
-interface Run {
-  status: number | null;
-  stdout: string;
-  stderr: string;
-}
+const root = REPOSITORY_ROOT;
 
 /**
  * Checks that `text` is well-formed XML as our SVG writes it: balanced tags, quoted attributes,
@@ -58,18 +51,12 @@ describe('scatterwise report (the real dist/cli.js)', function () {
   this.timeout(300_000);
   let folder: string;
 
-  function run(args: readonly string[], cwd = folder): Run {
-    const result = spawnSync(process.execPath, [cli, ...args], { cwd, encoding: 'utf8', timeout: 120_000 });
-    return { status: result.status, stdout: result.stdout, stderr: result.stderr };
+  function run(args: readonly string[], cwd = folder): CliRun {
+    return runCli(args, { cwd, timeout: 120_000 });
   }
 
   before(() => {
-    const build = spawnSync(
-      process.execPath,
-      ['-e', "require('esbuild').build({entryPoints:{cli:'src/cli/main.ts'},bundle:true,platform:'node',format:'cjs',target:'node20',outdir:'dist',banner:{js:'#!/usr/bin/env node'},logLevel:'error'}).catch(()=>process.exit(1))"],
-      { cwd: root, encoding: 'utf8' },
-    );
-    assert.equal(build.status, 0, build.stderr);
+    buildCli();
     folder = mkdtempSync(path.join(os.tmpdir(), 'scatterwise-report-'));
     cpSync(path.join(root, 'sample-workspace', 'data'), path.join(folder, 'data'), { recursive: true });
     cpSync(path.join(root, 'sample-workspace', 'scatterwise.config.json'), path.join(folder, 'scatterwise.config.json'));

@@ -4,12 +4,12 @@
  * in test/fixtures/golden/ (regenerate with `node scripts/make-golden.mjs` and review the diff).
  */
 import { strict as assert } from 'node:assert';
-import { spawnSync } from 'node:child_process';
 import { existsSync, readFileSync } from 'node:fs';
 import * as path from 'node:path';
+import { buildCli, REPOSITORY_ROOT } from './cliProcess';
 import { GOLDEN_CASES, goldenFile, renderGoldenCases, type GoldenOutput } from './goldenCases';
 
-const root = path.resolve(__dirname, '../../..');
+const root = REPOSITORY_ROOT;
 
 /** Cells of a Markdown table row: split at pipes not escaped by a backslash. */
 function cells(line: string): string[] {
@@ -47,13 +47,7 @@ describe('reviewer Markdown (report and compare) against the golden copies', fun
   let outputs: GoldenOutput[];
 
   before(() => {
-    const build = spawnSync(
-      process.execPath,
-      ['-e', "require('esbuild').build({entryPoints:{cli:'src/cli/main.ts'},bundle:true,platform:'node',format:'cjs',target:'node20',outdir:'dist',banner:{js:'#!/usr/bin/env node'},logLevel:'error'}).catch(()=>process.exit(1))"],
-      { cwd: root, encoding: 'utf8' },
-    );
-    assert.equal(build.status, 0, build.stderr);
-    outputs = renderGoldenCases(path.join(root, 'dist', 'cli.js'), root);
+    outputs = renderGoldenCases(buildCli(), root);
   });
 
   it('every case ends with its exit code', () => {

@@ -5,14 +5,14 @@
  * figures of `fit` on the whole file. (The scripts themselves run in test/reference/scripts*.)
  */
 import { strict as assert } from 'node:assert';
-import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { join } from 'node:path';
 import type { FitReport } from '../../src/core/types';
+import { buildCli, REPOSITORY_ROOT, runCli } from './cliProcess';
 
-const root = resolve(__dirname, '../../..');
+const root = REPOSITORY_ROOT;
 const data = join(root, 'sample-workspace', 'data', 'pump-faults.csv');
 
 const sha256 = (path: string) => createHash('sha256').update(readFileSync(path)).digest('hex');
@@ -21,17 +21,11 @@ describe('scatterwise script, moments and fit --moments (the real CLI bundle)', 
   this.timeout(120_000);
   let folder: string;
   let cli: string;
-  const run = (...args: string[]) => spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: folder, timeout: 60_000 });
+  const run = (...args: string[]) => runCli(args, { cli, cwd: folder, timeout: 60_000 });
 
   before(() => {
     folder = mkdtempSync(join(tmpdir(), 'scatterwise-cli-scripts-'));
-    const build = spawnSync(
-      process.execPath,
-      ['-e', `require('esbuild').build({entryPoints:{cli:'src/cli/main.ts'},bundle:true,platform:'node',format:'cjs',target:'node20',outdir:${JSON.stringify(folder)},logLevel:'error'}).catch(()=>process.exit(1))`],
-      { cwd: root, encoding: 'utf8' },
-    );
-    assert.equal(build.status, 0, build.stderr);
-    cli = join(folder, 'cli.js');
+    cli = buildCli(folder);
   });
   after(() => rmSync(folder, { recursive: true, force: true }));
 
