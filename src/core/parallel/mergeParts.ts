@@ -15,6 +15,7 @@ import { DuplicateRows, rowKey } from '../pipeline/duplicateRows';
 import type { FirstPassResult } from '../pipeline/firstPass';
 import { MajorityVote, mergeMajorityVotes } from '../pipeline/majorityValue';
 import type { SecondPassResult } from '../pipeline/secondPass';
+import { unpackSamples } from '../pipeline/sampleCollector';
 import type { FirstRangePart, SecondRangePart } from './rangeScanner';
 
 /** Where each range of a pass-1 split sits in the file, for the passes after it. */
@@ -150,8 +151,6 @@ export function mergeSecondParts(parts: SecondRangePart[], misclassifiedLimit: n
   const crossValidatedConfusion = first.crossValidatedConfusion ? square() : null;
   const misclassified: SecondPassResult['misclassified'] = [];
   let misclassifiedTotal = 0;
-  const sample: SecondPassResult['sample'] = { total: 0, rows: [], lines: [], classIndex: [], ld: [], pc: [], topFeatureValues: [] };
-  let hasLines = true;
   const majorityCounts = new Float64Array(first.majorityCounts.length);
   for (const { result } of parts) {
     for (let i = 0; i < K; i++) {
@@ -162,17 +161,8 @@ export function mergeSecondParts(parts: SecondRangePart[], misclassifiedLimit: n
     }
     for (const entry of result.misclassified) if (misclassified.length < misclassifiedLimit) misclassified.push(entry);
     misclassifiedTotal += result.misclassifiedTotal;
-    const s = result.sample;
-    sample.total += s.total;
-    append(sample.rows, s.rows);
-    if (s.lines) append(sample.lines!, s.lines);
-    else hasLines = false;
-    append(sample.classIndex, s.classIndex);
-    append(sample.ld, s.ld);
-    append(sample.pc, s.pc);
-    append(sample.topFeatureValues, s.topFeatureValues);
     for (let j = 0; j < majorityCounts.length; j++) majorityCounts[j]! += result.majorityCounts[j]!;
   }
-  if (!hasLines) delete sample.lines;
+  const sample = unpackSamples(parts.map((part) => part.sample));
   return { confusion, crossValidatedConfusion, misclassified, misclassifiedTotal, sample, majorityCounts };
 }

@@ -42,24 +42,20 @@ export function openPassJob(source: ByteSource, job: PassJob): PassJobRunner {
 class UsedRowRecorder {
   readonly usedById: number[] = [];
   private count = 0;
-  private readonly hashes: Uint32Array;
-  private readonly labels: Int32Array;
-  private readonly rows: Int32Array;
-  private readonly lines: Int32Array;
+  private hashes = new Uint32Array(0);
+  private labels = new Int32Array(0);
+  private rows = new Int32Array(0);
+  private lines = new Int32Array(0);
   private readonly hash = new Uint32Array(2);
 
-  constructor(private readonly budget: number) {
-    this.hashes = new Uint32Array(2 * budget);
-    this.labels = new Int32Array(budget);
-    this.rows = new Int32Array(budget);
-    this.lines = new Int32Array(budget);
-  }
+  constructor(private readonly budget: number) {}
 
   add(label: number, values: Float64Array, offset: number, d: number, row: number, line: number | undefined): void {
     while (this.usedById.length <= label) this.usedById.push(0);
     this.usedById[label]! += 1;
     const n = this.count;
     if (n >= this.budget) return;
+    if (n === this.rows.length) this.grow(Math.min(this.budget, Math.max(1024, 2 * n)));
     rowValueHash(values, offset, d, this.hash);
     this.hashes[2 * n] = this.hash[0]!;
     this.hashes[2 * n + 1] = this.hash[1]!;
@@ -67,6 +63,18 @@ class UsedRowRecorder {
     this.rows[n] = row;
     this.lines[n] = line ?? 0;
     this.count = n + 1;
+  }
+
+  /** Grows the record as rows come (a budget of 250 000 rows would be 5 MB for each range). */
+  private grow(size: number): void {
+    const hashes = new Uint32Array(2 * size);
+    hashes.set(this.hashes);
+    this.hashes = hashes;
+    for (const name of ['labels', 'rows', 'lines'] as const) {
+      const grown = new Int32Array(size);
+      grown.set(this[name]);
+      this[name] = grown;
+    }
   }
 
   record(): FirstRangePart['duplicates'] {
@@ -170,6 +178,7 @@ function secondJob(source: ByteSource, job: SecondPassJob): PassJobRunner {
           majorityCandidates: job.majorityCandidates,
           misclassifiedLimit: job.misclassifiedLimit,
           rowLimit: null,
+          packSample: true,
           range: task.range,
           start: { classRows: task.classRows ?? [], ...(task.foldRows ? { foldRows: task.foldRows } : {}) },
           ...(job.scores ? { onScores } : {}),
@@ -177,7 +186,9 @@ function secondJob(source: ByteSource, job: SecondPassJob): PassJobRunner {
         control,
       );
       if (scores) scores.values = scores.values.slice(0, scores.rows * scores.k);
-      return { result, ...(scores ? { scores } : {}) };
+      const sample = result.packedSample!;
+      delete result.packedSample;
+      return { result, sample, ...(scores ? { scores } : {}) };
     },
     finish(): null {
       return null;

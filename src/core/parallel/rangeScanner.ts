@@ -16,6 +16,7 @@ import type { PcaSolution } from '../pca';
 import type { ByteRange, ScanSummary, TableInspection } from '../read/types';
 import type { RunControl } from '../source';
 import type { SecondPassResult } from '../pipeline/secondPass';
+import type { PackedSample } from '../pipeline/sampleCollector';
 
 /** The columns a row pass reads. */
 export interface PassColumns {
@@ -111,7 +112,9 @@ export interface FoldWorkerResult {
 }
 
 export interface SecondRangePart {
+  /** The range's pass 2, its plot sample left empty: the points are in `sample`. */
   result: SecondPassResult;
+  sample: PackedSample;
   /** With `scores`: rows × k discriminant scores (NaN for dropped rows) from `firstRow`. */
   scores?: { firstRow: number; rows: number; k: number; values: Float64Array };
 }

@@ -21,6 +21,7 @@ import type { ByteRange, TableInspection } from '../read/types';
 import type { ByteSource, RunControl } from '../source';
 import type { FitReport } from '../types';
 import { CandidateCount } from './majorityValue';
+import { SampleCollector, unpackSamples, type PackedSample } from './sampleCollector';
 import { PassControl } from './passControl';
 
 /** Discriminant scores of a batch of rows, for the caller: `rows × k`, NaN for rows not used. */
@@ -71,6 +72,8 @@ export interface SecondPassInput {
   start?: { classRows: readonly number[]; foldRows?: readonly number[] };
   /** The labels in order of first appearance among used rows; replaces `appearance` when the scan's label ids are its own (a range). */
   appearanceLabels?: readonly string[];
+  /** Return the plot sample as `packedSample` (flat arrays, to join with other ranges' later). */
+  packSample?: boolean;
 }
 
 export interface SecondPassResult {
@@ -79,6 +82,8 @@ export interface SecondPassResult {
   misclassified: FitReport['misclassified'];
   misclassifiedTotal: number;
   sample: Omit<FitReport['sample'], 'topFeatures'> & { topFeatureValues: number[][] };
+  /** With `packSample`: the sample in flat arrays (and `sample` empty). */
+  packedSample?: PackedSample;
   majorityCounts: Float64Array;
 }
 
@@ -104,8 +109,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
   const cvConfusion = crossValidator.kind === 'none' ? null : square(K);
   const misclassified: FitReport['misclassified'] = [];
   let misclassifiedTotal = 0;
-  const sample: SecondPassResult['sample'] = { total: 0, rows: [], lines: [], classIndex: [], ld: [], pc: [], topFeatureValues: [] };
-  let hasLines = true;
+  const sample = new SampleCollector(plotAxes, input.topFeatures.length);
 
   const posterior = new Float64Array(K);
   const x = new Float64Array(d);
@@ -132,7 +136,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
         let rows = batch.rows;
         if (input.rowLimit !== null) rows = Math.max(0, Math.min(rows, input.rowLimit - batch.firstRow));
         if (input.onScores && scores.length < rows * k) scores = new Float64Array(batch.rows * k);
-        if (!batch.lines) hasLines = false;
+        if (!batch.lines) sample.hasLines = false;
         const { values } = batch;
         for (let i = 0; i < rows; i++) {
           const offset = i * d;
@@ -179,12 +183,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
           sample.total++;
           if (sampler.take(truth)) {
             pcaScoreRow(pca, x, pc);
-            sample.rows.push(row);
-            sample.lines!.push(line ?? 0);
-            sample.classIndex.push(truth);
-            sample.ld.push(Array.from(ld.subarray(0, plotAxes)));
-            sample.pc.push([pc[0]!, pc[1]!]);
-            sample.topFeatureValues.push(input.topFeatures.map((j) => values[offset + j]!));
+            sample.add(row, line, truth, ld, pc, values, offset, input.topFeatures);
           }
         }
         if (input.onScores && rows > 0) input.onScores({ firstRow: batch.firstRow, rows, k, scores: scores.subarray(0, rows * k) });
@@ -192,6 +191,14 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
       },
     }),
   );
-  if (!hasLines) delete sample.lines;
-  return { confusion, crossValidatedConfusion: cvConfusion, misclassified, misclassifiedTotal, sample, majorityCounts: majority.counts };
+  const packed = sample.packed();
+  return {
+    confusion,
+    crossValidatedConfusion: cvConfusion,
+    misclassified,
+    misclassifiedTotal,
+    sample: input.packSample ? unpackSamples([]) : unpackSamples([packed]),
+    ...(input.packSample ? { packedSample: packed } : {}),
+    majorityCounts: majority.counts,
+  };
 }

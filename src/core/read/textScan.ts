@@ -37,6 +37,14 @@ const ODD_ROW = -2;
 /** Label of the current row: pending new label (intern at commit). */
 const LABEL_NEW = -2;
 
+/**
+ * One chunk buffer kept from a finished scan for the next: a parallel worker scans many ranges one
+ * after another, and a fresh 4 MiB buffer for each would pile up, since typed-array memory lies
+ * outside the JavaScript heap and the collector is slow to reclaim it. A scanner takes the spare
+ * (leaving none for a scan running beside it) and gives it back when it ends.
+ */
+let spareBuffer: Uint8Array | null = null;
+
 export async function scanDelimitedText(request: ScanRequest, tuning: TextTuning = DEFAULT_TEXT_TUNING): Promise<ScanSummary> {
   const scanner = new DelimitedTextScanner(request, tuning);
   return scanner.run();
@@ -132,11 +140,23 @@ class DelimitedTextScanner {
     this.stopAt = range ? Math.min(range.end, source.size) : source.size;
     this.readEnd = source.size;
     this.headerPending = inspection.header && this.readOffset === 0;
-    this.buffer = new Uint8Array(Math.max(16, tuning.chunkBytes) + 1);
+    const bufferBytes = Math.max(16, tuning.chunkBytes) + 1;
+    if (spareBuffer?.length === bufferBytes) {
+      this.buffer = spareBuffer;
+      spareBuffer = null;
+    } else this.buffer = new Uint8Array(bufferBytes);
     this.progress = new PassProgress(request.control, request.pass ?? 'rows', Math.max(0, this.stopAt - this.readOffset));
   }
 
   async run(): Promise<ScanSummary> {
+    try {
+      return await this.scan();
+    } finally {
+      if (this.buffer.length === Math.max(16, this.tuning.chunkBytes) + 1) spareBuffer = this.buffer;
+    }
+  }
+
+  private async scan(): Promise<ScanSummary> {
     const range = this.request.range;
     if (range && range.start > 0 && range.origin) {
       // The caller aligned the range to a row start and knows its line and row.
