@@ -15,7 +15,8 @@ import type { RangeScanner } from '../../src/core/parallel/rangeScanner';
 import type { ScoreBatch } from '../../src/core/pipeline/secondPass';
 import type { ByteSource } from '../../src/core/source';
 import type { FitOptions, FitReport } from '../../src/core/types';
-import { addColumn, pumpTable, sourceOf, toCsv, uniform } from './generatedTables';
+import { openFileSource } from '../../src/node/fileSource';
+import { addColumn, pumpTable, sourceOf, toCsv, uniform, writeTemporary } from './generatedTables';
 import { assertClose, assertSameReport } from './reportComparison';
 
 /** The scanner, recording the kind of each job it runs and how many ranges each had. */
@@ -74,6 +75,21 @@ describe('parallel analysis: the same report as one thread', function () {
     assert.ok(single.findings.some((f) => f.code === 'non-numeric-cells'));
     assertSameReport(single, parallel);
     assert.deepEqual(jobKinds(), ['first', 'second']);
+  });
+
+  it('reads a file through one source shared by the workers (a source may reuse its read buffer)', async () => {
+    const path = writeTemporary('fleet.csv', toCsv(pumpTable([2000, 1500, 2500], 6, 13)));
+    const source = await openFileSource(path);
+    try {
+      const single = (await analyze(source, { cv: 'kfold:4' })).report;
+      const scanner = recording(inProcessScanner(source, { workers: 3, rangeBytes: 16 * 1024 }));
+      const parallel = (await analyze(source, { cv: 'kfold:4' }, { scanner })).report;
+      lastJobs = scanner.jobs;
+      assertSameReport(single, parallel);
+      assert.deepEqual(jobKinds(), ['first', 'folds', 'second']);
+    } finally {
+      await source.close();
+    }
   });
 
   it('k-fold cross-validation: folds continue across ranges', async () => {

@@ -14,7 +14,26 @@ export function progressPassOf(job: PassJob): Progress['pass'] {
   return job.kind === 'second' ? 'rows' : 'moments';
 }
 
-export function inProcessScanner(source: ByteSource, options: { workers: number; minimumBytes?: number; rangeBytes?: number }): RangeScanner {
+/**
+ * The source for the turn-taking workers: one read at a time, each returned as a copy. A source may
+ * read into one reused buffer (the ByteSource contract lets it), and two scans reading at once
+ * would otherwise overwrite each other's bytes.
+ */
+function oneReadAtATime(source: ByteSource): ByteSource {
+  let queue: Promise<unknown> = Promise.resolve();
+  return {
+    name: source.name,
+    size: source.size,
+    read(offset, length) {
+      const result = queue.then(async () => (await source.read(offset, length)).slice());
+      queue = result.catch(() => undefined);
+      return result;
+    },
+  };
+}
+
+export function inProcessScanner(shared: ByteSource, options: { workers: number; minimumBytes?: number; rangeBytes?: number }): RangeScanner {
+  const source = oneReadAtATime(shared);
   return {
     workers: options.workers,
     minimumBytes: options.minimumBytes ?? 0,
