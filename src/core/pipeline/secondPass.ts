@@ -7,7 +7,8 @@
  *
  * A misclassified row's `posterior` is the posterior probability of the class it was predicted as.
  */
-import type { Classifier } from '../classify';
+import type { Classifier, LeaveOneOut } from '../classify';
+import { softmaxInPlace } from '../classify';
 import type { FoldParts } from '../foldModels';
 import type { Moments } from '../moments';
 import { FoldAssigner } from '../folds';
@@ -38,7 +39,7 @@ export interface ScoreBatch {
  * can rebuild the same models in each worker (models are functions and do not cross threads).
  */
 export type CrossValidator =
-  | { kind: 'loo'; model: { predict(x: Float64Array, trueClass: number, out: Float64Array): number }; trainedOn?: { moments: Moments } }
+  | { kind: 'loo'; model: LeaveOneOut; trainedOn?: { moments: Moments } }
   | { kind: 'kfold'; classifiers: Classifier[]; seed: number; trainedOn?: { moments: Moments; folds: FoldParts; options: LdaOptions } }
   | { kind: 'none' };
 
@@ -156,17 +157,20 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
           if (input.onScores) scores.set(ld, i * k);
           majority.count(values, offset);
 
-          const predicted = classifier.predict(x, posterior);
+          // Log scores where the models give them: the posterior (a softmax) is needed only for
+          // the misclassified rows listed.
+          let logScores = classifier.predictFromScores !== undefined;
+          const predicted = logScores ? classifier.predictFromScores!(ld, posterior) : classifier.predict(x, posterior);
           confusion[truth]![predicted]! += 1;
           let judged = predicted;
-          let judgedPosterior = posterior[predicted]!;
           if (crossValidator.kind === 'loo') {
-            judged = crossValidator.model.predict(x, truth, posterior);
-            judgedPosterior = posterior[judged]!;
+            const model = crossValidator.model;
+            logScores = model.logScores !== undefined;
+            judged = logScores ? model.logScores!(x, truth, posterior) : model.predict(x, truth, posterior);
           } else if (crossValidator.kind === 'kfold') {
             const fold = assigner!.foldOf(orderOfId[id]!);
             judged = crossValidator.classifiers[fold]!.predict(x, posterior);
-            judgedPosterior = posterior[judged]!;
+            logScores = false;
           }
           if (cvConfusion) cvConfusion[truth]![judged]! += 1;
           const row = batch.firstRow + i;
@@ -174,7 +178,8 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
           if (judged !== truth) {
             misclassifiedTotal++;
             if (misclassified.length < input.misclassifiedLimit) {
-              const entry: FitReport['misclassified'][number] = { row, label: solution.labels[truth]!, predicted: solution.labels[judged]!, posterior: judgedPosterior };
+              if (logScores) softmaxInPlace(posterior, K);
+              const entry: FitReport['misclassified'][number] = { row, label: solution.labels[truth]!, predicted: solution.labels[judged]!, posterior: posterior[judged]! };
               if (line !== undefined) entry.line = line;
               misclassified.push(entry);
             }
