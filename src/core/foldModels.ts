@@ -21,12 +21,15 @@ import type { Classifier } from './classify';
 import { createClassifier } from './classify';
 import { DataError } from './errors';
 import { solveLda, solvePooled, type LdaOptions, type LdaSolution, type PooledMoments } from './lda';
-import { crossProductUpdate, mirrorUpper } from './linalg';
+import { createCrossProductKernel, type CrossProductKernel } from './crossProductKernel';
+import { mirrorUpper } from './linalg';
 import type { Moments } from './moments';
 
 const BLOCK_ROWS = 64;
 
 interface FoldState {
+  /** Owns `scatter` and `block` and updates one from the other (crossProductKernel.ts). */
+  kernel: CrossProductKernel;
   /** d × d upper triangle: pooled within-class scatter of the fold's rows. */
   scatter: Float64Array;
   /** Per class index: count and mean relative to the class's shift. */
@@ -60,7 +63,7 @@ export class FoldMomentsAccumulator implements FoldParts {
   private readonly byLabel = new Map<string, number>();
   private readonly shifts: Float64Array[] = [];
   private slotOf = new Int32Array(8);
-  private readonly stride = 2 * BLOCK_ROWS;
+  private readonly stride = 2 * BLOCK_ROWS + 2; // the rows, a correction row per class, a spare to keep it even (crossProductKernel.ts)
   private blockSums = new Float64Array(0);
 
   constructor(
@@ -69,14 +72,10 @@ export class FoldMomentsAccumulator implements FoldParts {
   ) {
     if (!Number.isInteger(kFolds) || kFolds < 2) throw new DataError('bad-option', `k-fold cross-validation needs at least 2 folds, not ${kFolds}.`);
     this.d = features.length;
-    this.folds = Array.from({ length: kFolds }, () => ({
-      scatter: new Float64Array(this.d * this.d),
-      counts: [],
-      means: [],
-      block: new Float64Array(this.d * this.stride),
-      classes: new Int32Array(BLOCK_ROWS),
-      buffered: 0,
-    }));
+    this.folds = Array.from({ length: kFolds }, () => {
+      const kernel = createCrossProductKernel(this.d, this.stride);
+      return { kernel, scatter: kernel.scatter, block: kernel.block, counts: [], means: [], classes: new Int32Array(BLOCK_ROWS), buffered: 0 };
+    });
   }
 
   /** Rows as for MomentsAccumulator.add, with each row's fold (0..kFolds−1). */
@@ -181,7 +180,7 @@ export class FoldMomentsAccumulator implements FoldParts {
       if (nA > 0) extra++;
       fold.counts[c] = n;
     }
-    crossProductUpdate(fold.scatter, d, y, stride, nb + extra);
+    fold.kernel.update(nb + extra);
     fold.buffered = 0;
   }
 

@@ -279,9 +279,23 @@ export function crossProductUpdate(s: Float64Array, d: number, columns: Float64A
   }
 }
 
-/** Copies the upper triangle of an n × n matrix onto its lower triangle, in place. */
+/**
+ * Copies the upper triangle of an n × n matrix onto its lower triangle, in place, in 32 × 32
+ * tiles: a column written element by element down a large matrix misses the cache at every
+ * step (at n = 1000 the plain loop took longer than the whole rest of a moments snapshot).
+ */
 export function mirrorUpper(s: Float64Array, n: number): void {
-  for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) s[j * n + i] = s[i * n + j];
+  const TILE = 32;
+  for (let i0 = 0; i0 < n; i0 += TILE) {
+    const iEnd = Math.min(n, i0 + TILE);
+    for (let j0 = i0; j0 < n; j0 += TILE) {
+      const jEnd = Math.min(n, j0 + TILE);
+      for (let i = i0; i < iEnd; i++) {
+        const row = i * n;
+        for (let j = Math.max(j0, i + 1); j < jEnd; j++) s[j * n + i] = s[row + j];
+      }
+    }
+  }
 }
 
 /** out = S x for a symmetric n × n matrix of which only the upper triangle is read. */

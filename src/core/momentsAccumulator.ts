@@ -3,16 +3,20 @@
  * the row count: per class a d × d scatter and a buffer of 64 rows. The accumulator never sums
  * raw x xᵀ: each class's rows are shifted by the class's first row, buffered 64 at a time,
  * centred on the block mean, multiplied out as one blocked cross-product
- * (linalg.crossProductUpdate, 2–3× faster than a rank-1 update per row, MEASURED.md) and merged
+ * (crossProductKernel.ts: WebAssembly SIMD, or linalg.crossProductUpdate, 2–3× faster than a rank-1
+ * update per row, MEASURED.md) and merged
  * into the running centred moments with Chan et al.'s pairwise formula (momentShift.ts).
  */
 import { DataError } from './errors';
-import { crossProductUpdate, mirrorUpper, symmetricMultiplyUpper } from './linalg';
+import { createCrossProductKernel, type CrossProductKernel } from './crossProductKernel';
+import { mirrorUpper, symmetricMultiplyUpper } from './linalg';
 import { shiftQuartic } from './momentShift';
 import type { ClassMoments, Moments } from './moments';
 
 /** Rows buffered per class before one blocked update (MEASURED.md: ~64 is the sweet spot). */
 const BLOCK_ROWS = 64;
+/** Columns of the transposed block: the rows, the merge's correction row, and a spare to keep it even (crossProductKernel.ts). */
+const STRIDE = BLOCK_ROWS + 2;
 
 /**
  * Running moments of one class. The mean is kept relative to `shift` (the class's first row);
@@ -31,6 +35,7 @@ class ClassAccumulator {
   readonly max: Float64Array;
   readonly shift: Float64Array;
   readonly block: Float64Array;
+  private readonly kernel: CrossProductKernel;
   private readonly blockCubic: Float64Array;
   private readonly delta: Float64Array;
   private readonly scatterTimesDelta: Float64Array;
@@ -44,12 +49,14 @@ class ClassAccumulator {
     readonly features: readonly string[],
   ) {
     this.mean = new Float64Array(d);
-    this.scatter = new Float64Array(d * d);
+    // The scatter and the block live in the cross-product kernel's memory (WebAssembly SIMD when available).
+    this.kernel = createCrossProductKernel(d, STRIDE);
+    this.scatter = this.kernel.scatter;
     this.cubic = new Float64Array(d);
     this.min = new Float64Array(d).fill(Infinity);
     this.max = new Float64Array(d).fill(-Infinity);
     this.shift = new Float64Array(d);
-    this.block = new Float64Array(d * (BLOCK_ROWS + 1));
+    this.block = this.kernel.block;
     this.blockCubic = new Float64Array(d);
     this.delta = new Float64Array(d);
     this.scatterTimesDelta = new Float64Array(d);
@@ -60,7 +67,7 @@ class ClassAccumulator {
     const nb = this.buffered;
     if (nb === 0) return;
     const d = this.d;
-    const stride = BLOCK_ROWS + 1;
+    const stride = STRIDE;
     const y = this.block;
     const { rowNorms, projections, delta, blockCubic, blockTimesDelta } = this;
     const first = this.count === 0;
@@ -124,7 +131,7 @@ class ClassAccumulator {
     if (first) {
       // The running mean was 0 (relative to the shift), so δ is the block mean.
       this.mean.set(delta);
-      crossProductUpdate(this.scatter, d, y, stride, nb);
+      this.kernel.update(nb);
       this.cubic.set(blockCubic);
       this.quartic = blockQuartic;
       this.scatterTrace = blockTrace;
@@ -163,7 +170,7 @@ class ClassAccumulator {
     // S = S_A + S_B + (nA nb / n) δδᵀ: the rank-1 term rides along as one more block row.
     const weight = Math.sqrt((nA * nb) / n);
     for (let i = 0; i < d; i++) y[i * stride + nb] = weight * delta[i];
-    crossProductUpdate(this.scatter, d, y, stride, nb + 1);
+    this.kernel.update(nb + 1);
     this.scatterTrace += blockTrace + ((nA * nb) / n) * deltaSq;
     this.count = n;
     this.buffered = 0;
@@ -171,7 +178,7 @@ class ClassAccumulator {
 
   snapshot(): ClassMoments {
     const d = this.d;
-    const scatter = Float64Array.from(this.scatter);
+    const scatter = this.scatter.slice(); // a copy (Float64Array.from would go element by element through an iterator)
     mirrorUpper(scatter, d);
     const mean = new Float64Array(d);
     for (let i = 0; i < d; i++) mean[i] = this.shift[i] + this.mean[i];
@@ -205,7 +212,7 @@ export class MomentsAccumulator {
    */
   add(values: Float64Array, classIds: Int32Array, rows: number, labels: readonly string[]): void {
     const d = this.d;
-    const stride = BLOCK_ROWS + 1;
+    const stride = STRIDE;
     const local: (ClassAccumulator | undefined)[] = new Array(labels.length);
     for (let r = 0; r < rows; r++) {
       const id = classIds[r];
