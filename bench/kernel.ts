@@ -9,8 +9,10 @@
  * Park–Miller generator, written once as little-endian float64 (n × d, row-major).
  */
 import { closeSync, existsSync, openSync, readFileSync, writeSync } from 'node:fs';
+import { Worker, parentPort } from 'node:worker_threads';
+import { simdAvailable } from '../src/core/crossProductKernel';
 import { solveLda } from '../src/core/lda';
-import { MomentsAccumulator } from '../src/core/moments';
+import { MomentsAccumulator, mergeMoments, type Moments } from '../src/core/moments';
 import { fitMoments } from '../src/core/pipeline/fitMoments';
 import { resolveOptions } from '../src/core/pipeline/options';
 
@@ -33,10 +35,10 @@ export function writeKernelRows(path: string, n: number, d: number, classes: num
   closeSync(file);
 }
 
-function readRows(path: string, n: number, d: number): Float64Array {
+function readRows(path: string, n: number, d: number, first = 0): Float64Array {
   const bytes = readFileSync(path);
   const values = new Float64Array(n * d);
-  new Uint8Array(values.buffer).set(bytes.subarray(0, n * d * 8));
+  new Uint8Array(values.buffer).set(bytes.subarray(first * d * 8, (first + n) * d * 8));
   return values;
 }
 
@@ -45,16 +47,79 @@ const median = (values: number[]): number => [...values].sort((a, b) => a - b)[M
 export interface KernelResult {
   n: number;
   d: number;
-  /** Median seconds of the moments update over all n rows. */
+  /** Whether the cross-product ran as WebAssembly SIMD. */
+  simd: boolean;
+  /** Median seconds of the moments update over all n rows, in one thread. */
   momentsSeconds: number;
   momentsCpuSeconds: number;
+  /** Median seconds of the same split over two threads and merged, as the parallel pass 1 does. */
+  twoThreadSeconds: number;
   /** With `fit`: median seconds of solveLda and of fitMoments on the moments. */
   solveLdaSeconds?: number;
   fitMomentsSeconds?: number;
 }
 
+export interface HalfTask {
+  path: string;
+  first: number;
+  n: number;
+  d: number;
+  classes: number;
+}
+
+/**
+ * In a worker thread started by twoThreads: reads its half of the rows, warms up, and on 'go'
+ * accumulates them and posts the moments.
+ */
+export function kernelHalfWorker(task: HalfTask): void {
+  const values = readRows(task.path, task.n, task.d, task.first);
+  const ids = Int32Array.from({ length: task.n }, (_, i) => (task.first + i) % task.classes);
+  const labels = Array.from({ length: task.classes }, (_, k) => `class ${k + 1}`);
+  const features = Array.from({ length: task.d }, (_, j) => `feature_${j + 1}`);
+  new MomentsAccumulator(features).add(values, ids, Math.min(task.n, 2000), labels);
+  parentPort!.postMessage('ready');
+  parentPort!.once('message', () => {
+    const accumulator = new MomentsAccumulator(features);
+    accumulator.add(values, ids, task.n, labels);
+    parentPort!.postMessage(accumulator.result());
+  });
+}
+
+/** Seconds to accumulate the rows in two threads (one half each) and merge their moments. */
+function twoThreads(path: string, n: number, d: number, classes: number): Promise<number> {
+  const half = Math.floor(n / 2);
+  const tasks: HalfTask[] = [
+    { path, first: 0, n: half, d, classes },
+    { path, first: half, n: n - half, d, classes },
+  ];
+  return new Promise<number>((resolve, reject) => {
+    const workers = tasks.map((task) => new Worker(__filename, { workerData: { kernelHalf: task } }));
+    let ready = 0;
+    let started = 0;
+    const parts: Moments[] = [];
+    for (const worker of workers) {
+      worker.on('error', reject);
+      worker.on('message', (message: unknown) => {
+        if (message === 'ready') {
+          if (++ready === workers.length) {
+            started = performance.now();
+            for (const w of workers) w.postMessage('go');
+          }
+          return;
+        }
+        parts.push(message as Moments);
+        if (parts.length === workers.length) {
+          mergeMoments(parts[0]!, parts[1]!);
+          const seconds = (performance.now() - started) / 1000;
+          void Promise.all(workers.map((w) => w.terminate())).then(() => resolve(seconds));
+        }
+      });
+    }
+  });
+}
+
 /** Times the moments update (and with `fit` the fit from its moments); prints nothing. */
-export function measureKernel(path: string, n: number, d: number, classes: number, fit: boolean): KernelResult {
+export async function measureKernel(path: string, n: number, d: number, classes: number, fit: boolean): Promise<KernelResult> {
   const values = readRows(path, n, d);
   const ids = Int32Array.from({ length: n }, (_, i) => i % classes);
   const labels = Array.from({ length: classes }, (_, k) => `class ${k + 1}`);
@@ -73,7 +138,9 @@ export function measureKernel(path: string, n: number, d: number, classes: numbe
     cpu.push(process.cpuUsage(used).user / 1e6);
     wall.push((performance.now() - started) / 1000);
   }
-  const result: KernelResult = { n, d, momentsSeconds: median(wall), momentsCpuSeconds: median(cpu) };
+  const two: number[] = [];
+  for (let round = 0; round < 3; round++) two.push(await twoThreads(path, n, d, classes));
+  const result: KernelResult = { n, d, simd: simdAvailable(), momentsSeconds: median(wall), momentsCpuSeconds: median(cpu), twoThreadSeconds: median(two) };
   if (fit) {
     const moments = accumulator.result();
     const options = resolveOptions({});
