@@ -168,7 +168,7 @@ async function analyzeWith(passes: RowPasses, source: ByteSource, partial?: Part
   const rowLimit = provisionalRowLimit(inspection, source.size, control?.provisionalBytes);
   let features = roles.features;
   const foldsFor = (d: number): { count: number; seed: number } | undefined => {
-    const count = foldsToCollect(options.cv, inspection.estimatedRows, d);
+    const count = foldsToCollect(options.cv, rowLimit ?? inspection.estimatedRows, d);
     return count === undefined ? undefined : { count, seed: options.seed };
   };
   const runPass1 = (columns: typeof features, folds = foldsFor(columns.length), moments = true): Promise<FirstPassResult> =>
