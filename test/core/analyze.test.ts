@@ -366,7 +366,8 @@ describe('analyze: options and the choice of cross-validation', () => {
     assert.equal(autoMethod(5_000_000, 20), 'loo');
     assert.equal(autoMethod(5_000_001, 20), 'kfold:10');
     assert.equal(foldsToCollect('auto', 1000, 20), undefined);
-    assert.equal(foldsToCollect('auto', 600_000, 20), 10, 'collected from a tenth of the limit on');
+    assert.equal(foldsToCollect('auto', 2_400_000, 20), undefined, 'not collected below half the limit');
+    assert.equal(foldsToCollect('auto', 2_600_000, 20), 10, 'collected from half the limit on');
     assert.equal(foldsToCollect('kfold:4', 10, 2), 4);
     const classes = [{ label: 'a', count: 5 }, { label: 'b', count: 1 }];
     const loo = planCrossValidation('loo', classes, 3);
