@@ -117,7 +117,7 @@ export function createParallelScanner(path: string, name: string, options: Paral
           if (next >= count) return null;
           const index = next++;
           const described = task(index);
-          sizes[index] = described.range.end - described.range.start;
+          sizes[index] = described.bytes;
           return { index, described };
         };
         const accept = (index: number, part: unknown): boolean => {
@@ -186,6 +186,7 @@ export function createParallelScanner(path: string, name: string, options: Paral
             const part = await runner.scan(taken.described, {
               ...(control?.signal ? { signal: control.signal } : {}),
               onProgress: (p) => {
+                if (!taken.described.range) return;
                 progress[taken.index] = p.bytesRead;
                 reportProgress();
               },

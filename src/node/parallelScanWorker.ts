@@ -42,7 +42,9 @@ async function handle(message: ToScanWorker): Promise<void> {
     const index = message.index;
     let posted = 0;
     const onProgress = (progress: Progress): void => {
-      // At most ten a second: each message costs the main thread a wake-up.
+      // Only a byte range's progress is relative to it (a row range counts when done); at most
+      // ten a second: each message costs the main thread a wake-up.
+      if (!message.task.range) return;
       const now = Date.now();
       if (now - posted < PROGRESS_INTERVAL_MS) return;
       posted = now;

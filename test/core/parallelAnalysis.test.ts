@@ -15,6 +15,8 @@ import type { RangeScanner } from '../../src/core/parallel/rangeScanner';
 import type { ScoreBatch } from '../../src/core/pipeline/secondPass';
 import type { ByteSource } from '../../src/core/source';
 import type { FitOptions, FitReport } from '../../src/core/types';
+import { parquetWriteBuffer } from 'hyparquet-writer';
+import { memorySource } from '../../src/core/source';
 import { openFileSource } from '../../src/node/fileSource';
 import { addColumn, pumpTable, sourceOf, toCsv, uniform, writeTemporary } from './generatedTables';
 import { assertClose, assertSameReport } from './reportComparison';
@@ -89,6 +91,29 @@ describe('parallel analysis: the same report as one thread', function () {
       assert.deepEqual(jobKinds(), ['first', 'folds', 'second']);
     } finally {
       await source.close();
+    }
+  });
+
+  it('Parquet: shares of whole row groups, rows numbered in the file; one row group stays one thread', async () => {
+    const table = pumpTable([900, 700, 1100], 5, 19);
+    const columnOf = (j: number, type: 'DOUBLE' | 'STRING') => ({
+      name: table.header[j]!,
+      type,
+      data: table.rows.map((row) => (type === 'DOUBLE' ? Number(row[j]) : row[j]!)),
+    });
+    const columnData = table.header.map((name, j) => columnOf(j, name.startsWith('feature') ? 'DOUBLE' : 'STRING'));
+    for (const [rowGroupSize, kinds] of [
+      [250, ['first', 'folds', 'second']],
+      [100_000, []],
+    ] as const) {
+      const bytes = new Uint8Array(parquetWriteBuffer({ columnData, rowGroupSize }));
+      const source = memorySource('fleet.parquet', bytes);
+      const single = (await analyze(source, { cv: 'kfold:5' })).report;
+      const scanner = recording(inProcessScanner(source, { workers: 3 }));
+      const parallel = (await analyze(source, { cv: 'kfold:5' }, { scanner })).report;
+      lastJobs = scanner.jobs;
+      assertSameReport(single, parallel);
+      assert.deepEqual(lastJobs.map((job) => job.split('×')[0]), kinds);
     }
   });
 

@@ -49,11 +49,13 @@ export function inProcessScanner(shared: ByteSource, options: { workers: number;
         while (next < count) {
           const index = next++;
           const described = structuredClone(task(index));
-          const size = described.range.end - described.range.start;
+          const size = described.bytes;
           total += size;
           const part = await runner.scan(described, {
             ...(control?.signal ? { signal: control.signal } : {}),
             onProgress: (progress) => {
+              // Only a byte range's progress is relative to it; a row range counts when done.
+              if (!described.range) return;
               done[index] = Math.min(size, progress.bytesRead);
               control?.onProgress?.({ pass, bytesRead: done.reduce((a, b) => a + b, 0), bytesTotal: Math.max(total, source.size) });
             },

@@ -10,18 +10,18 @@
 import { EXAMPLES } from '../read/scanTally';
 import type { Moments } from '../moments';
 import { mergeMoments } from '../moments';
-import type { ByteRange, CellExample, ScanSummary } from '../read/types';
+import type { CellExample, ScanSummary } from '../read/types';
 import { DuplicateRows, rowKey } from '../pipeline/duplicateRows';
 import type { FirstPassResult } from '../pipeline/firstPass';
 import { MajorityVote, mergeMajorityVotes } from '../pipeline/majorityValue';
 import type { SecondPassResult } from '../pipeline/secondPass';
 import { unpackSamples } from '../pipeline/sampleCollector';
-import type { FirstRangePart, SecondRangePart } from './rangeScanner';
+import type { FirstRangePart, RangeTask, SecondRangePart } from './rangeScanner';
 
 /** Where each range of a pass-1 split sits in the file, for the passes after it. */
 export interface RangeLayout {
-  /** The ranges with their exact first line and row. */
-  ranges: ByteRange[];
+  /** The ranges, text ones with their exact first line and row. */
+  ranges: SourceShare[];
   /** Labels in order of first appearance among the used rows of the whole file. */
   appearance: string[];
   /** Per range: the used rows of each label in all the ranges before it. */
@@ -32,11 +32,16 @@ function shifted(examples: CellExample[], rowBase: number, lineBase: number): Ce
   return examples.map((e) => ({ ...e, row: e.row + rowBase, ...(e.line !== undefined ? { line: e.line + lineBase } : {}) }));
 }
 
+/** A share of a source for one task: a byte range of text or the rows of Parquet row groups, with its share of the bytes. */
+export type SourceShare = Pick<RangeTask, 'range' | 'rows' | 'bytes'>;
+
 /**
  * Pass 1 of the whole file from its ranges' parts (in file order) and the workers' moments.
- * Ragged rows are not merged here: the caller reads such a file in one thread.
+ * Text ranges number their rows from 0 and their lines from 1 (placed here); Parquet rows are
+ * numbered in the file already. Ragged rows are not merged here: the caller reads such a file in
+ * one thread.
  */
-export function mergeFirstParts(parts: FirstRangePart[], ranges: readonly ByteRange[], workerMoments: Moments[], featureNames: string[]): { result: FirstPassResult; layout: RangeLayout } {
+export function mergeFirstParts(parts: FirstRangePart[], ranges: readonly SourceShare[], workerMoments: Moments[], featureNames: string[]): { result: FirstPassResult; layout: RangeLayout } {
   const d = featureNames.length;
   const labels: string[] = [];
   const labelId = new Map<string, number>();
@@ -49,7 +54,7 @@ export function mergeFirstParts(parts: FirstRangePart[], ranges: readonly ByteRa
   const nonNumericExamples: CellExample[][] = Array.from({ length: d }, () => []);
   const duplicates = new DuplicateRows();
   const majority = new MajorityVote(d);
-  const layoutRanges: ByteRange[] = [];
+  const layoutRanges: SourceShare[] = [];
   const usedBefore: Map<string, number>[] = [];
   const running = new Map<string, number>();
   let rows = 0;
@@ -60,9 +65,11 @@ export function mergeFirstParts(parts: FirstRangePart[], ranges: readonly ByteRa
   let labelMissing = 0;
 
   parts.forEach((part, index) => {
-    const rowBase = rows;
-    const range = ranges[index]!;
-    layoutRanges.push(index === 0 ? { start: range.start, end: range.end } : { start: range.start, end: range.end, origin: { line: lineBase + 1, row: rowBase } });
+    const share = ranges[index]!;
+    const relative = share.range !== undefined;
+    const rowBase = relative ? rows : 0;
+    if (share.range && index > 0) layoutRanges.push({ ...share, range: { start: share.range.start, end: share.range.end, origin: { line: lineBase + 1, row: rowBase } } });
+    else layoutRanges.push(share);
     usedBefore.push(new Map(running));
     const toGlobal = part.labels.map((label) => {
       let id = labelId.get(label);
@@ -83,7 +90,7 @@ export function mergeFirstParts(parts: FirstRangePart[], ranges: readonly ByteRa
     const record = part.duplicates;
     for (let r = 0; r < record.rows.length && duplicates.open; r++) {
       const key = rowKey(record.hashes[2 * r]!, record.hashes[2 * r + 1]!, toGlobal[record.labels[r]!]!);
-      duplicates.addKey(key, record.rows[r]! + rowBase, record.lines[r]! + lineBase);
+      duplicates.addKey(key, record.rows[r]! + rowBase, relative ? record.lines[r]! + lineBase : undefined);
     }
     mergeMajorityVotes(majority, part.majority.candidates, part.majority.votes);
     for (let j = 0; j < d; j++) {

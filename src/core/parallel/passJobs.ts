@@ -28,6 +28,11 @@ export interface PassJobRunner {
   finish(): unknown;
 }
 
+/** The part of the source a task covers, as firstPass and secondPass take it. */
+function share(task: RangeTask): { range?: RangeTask['range']; rows?: RangeTask['rows'] } {
+  return { ...(task.range ? { range: task.range } : {}), ...(task.rows ? { rows: task.rows } : {}) };
+}
+
 export function openPassJob(source: ByteSource, job: PassJob): PassJobRunner {
   if (job.kind === 'first') return firstJob(source, job);
   if (job.kind === 'folds') return foldJob(source, job);
@@ -88,7 +93,7 @@ function firstJob(source: ByteSource, job: FirstPassJob): PassJobRunner {
   return {
     async scan(task, control): Promise<FirstRangePart> {
       const recorder = new UsedRowRecorder(task.duplicateBudget ?? 0);
-      const pass = await firstPass(source, job.inspection, { ...job.columns, moments: true, range: task.range, into: { moments }, duplicateSink: recorder }, control);
+      const pass = await firstPass(source, job.inspection, { ...job.columns, moments: true, ...share(task), into: { moments }, duplicateSink: recorder }, control);
       return {
         labels: pass.labels,
         appearance: pass.appearance.map((id) => pass.labels[id]!),
@@ -121,7 +126,7 @@ function foldJob(source: ByteSource, job: FoldPassJob): PassJobRunner {
       await firstPass(
         source,
         job.inspection,
-        { ...job.columns, moments: false, folds: job.folds, range: task.range, into: { folds }, foldStart: { order, rowsBefore: task.foldRows ?? [] }, duplicateSink: ignore },
+        { ...job.columns, moments: false, folds: job.folds, ...share(task), into: { folds }, foldStart: { order, rowsBefore: task.foldRows ?? [] }, duplicateSink: ignore },
         control,
       );
       return {};
@@ -179,7 +184,7 @@ function secondJob(source: ByteSource, job: SecondPassJob): PassJobRunner {
           misclassifiedLimit: job.misclassifiedLimit,
           rowLimit: null,
           packSample: true,
-          range: task.range,
+          ...share(task),
           start: { classRows: task.classRows ?? [], ...(task.foldRows ? { foldRows: task.foldRows } : {}) },
           ...(job.scores ? { onScores } : {}),
         },

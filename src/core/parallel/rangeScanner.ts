@@ -71,9 +71,12 @@ export interface SecondPassJob {
 
 export type PassJob = FirstPassJob | FoldPassJob | SecondPassJob;
 
-/** One range of one pass, described when a worker takes it. */
+/** One range of one pass, described when a worker takes it: bytes of text, or rows of Parquet. */
 export interface RangeTask {
-  range: ByteRange;
+  range?: ByteRange;
+  rows?: { start: number; end: number };
+  /** The range's share of the source's bytes, for progress. */
+  bytes: number;
   /** Pass 1: how many used rows of this range to hash for the duplicate check (0: none). */
   duplicateBudget?: number;
   /** Used rows before the range per class in order of first appearance (folds). */
@@ -82,7 +85,7 @@ export interface RangeTask {
   classRows?: number[];
 }
 
-/** Pass 1 over one range; rows and lines are relative to the range (row 0 on line 1). */
+/** Pass 1 over one range; for text, rows and lines are relative to the range (row 0 on line 1). */
 export interface FirstRangePart {
   /** The range's own label dictionary, in order of first appearance. */
   labels: string[];

@@ -1,7 +1,8 @@
 /**
  * The row passes of an analysis, in one thread (firstPass, secondPass) or spread over the workers
- * of a RangeScanner. The parallel version splits splittable text at row starts into ranges —
- * several per worker, so a worker slowed by other load does not hold up the rest — and runs:
+ * of a RangeScanner. The parallel version splits splittable text at row starts into ranges, and
+ * Parquet between row groups (a file of one row group stays with one thread) — several ranges per
+ * worker, so a worker slowed by other load does not hold up the rest — and runs:
  *
  *  pass 1   each range's cell checks and used-row counts; each worker's moments over its ranges.
  *           Rows are numbered relative to each range and placed once all ranges are in.
@@ -23,10 +24,11 @@ import type { FirstPassPlan, FirstPassResult } from '../pipeline/firstPass';
 import { DUPLICATE_CHECK_CAPACITY } from '../pipeline/duplicateRows';
 import { secondPass } from '../pipeline/secondPass';
 import type { SecondPassInput, SecondPassResult } from '../pipeline/secondPass';
+import { parquetRowGroups } from '../read/parquet';
 import { alignToRowStart } from '../read/textRange';
 import type { ByteRange, TableInspection } from '../read/types';
 import type { ByteSource, RunControl } from '../source';
-import { mergeFirstParts, mergeSecondParts, type RangeLayout } from './mergeParts';
+import { mergeFirstParts, mergeSecondParts, type RangeLayout, type SourceShare } from './mergeParts';
 import type { CrossValidationModel, FirstRangePart, FirstWorkerResult, FoldWorkerResult, RangeScanner, SecondRangePart } from './rangeScanner';
 
 /** The passes analyze.ts runs, with the signatures of firstPass and secondPass. */
@@ -47,9 +49,36 @@ const RANGES_PER_WORKER = 8;
 const MIN_RANGE_BYTES = 4 * 1024 * 1024;
 const MAX_RANGE_BYTES = 64 * 1024 * 1024;
 
-/** Whether a parallel scan of this source can give the single-thread result. */
+/** Whether a parallel scan of this source can give the single-thread result (Parquet: see splitSource). */
 export function canScanInParallel(scanner: RangeScanner | undefined, inspection: TableInspection, size: number): scanner is RangeScanner {
-  return scanner !== undefined && scanner.workers > 1 && inspection.format !== 'parquet' && inspection.splittable && size >= scanner.minimumBytes;
+  return scanner !== undefined && scanner.workers > 1 && (inspection.format === 'parquet' || inspection.splittable) && size >= scanner.minimumBytes;
+}
+
+/**
+ * The shares of a source: text split at row starts; Parquet split between row groups (rows are
+ * decoded a row group at a time, so a share is whole groups), about RANGES_PER_WORKER per worker;
+ * null for a Parquet file of one row group, which one thread reads.
+ */
+async function splitSource(source: ByteSource, inspection: TableInspection, scanner: RangeScanner): Promise<SourceShare[] | null> {
+  if (inspection.format !== 'parquet') {
+    return (await splitAtRowStarts(source, scanner.workers, scanner.rangeBytes)).map((range) => ({ range, bytes: range.end - range.start }));
+  }
+  const groups = await parquetRowGroups(source);
+  if (groups.length < 2) return null;
+  const total = groups.reduce((a, b) => a + b, 0);
+  const target = total / (scanner.workers * RANGES_PER_WORKER);
+  const shares: SourceShare[] = [];
+  let start = 0;
+  let rows = 0;
+  groups.forEach((count, g) => {
+    rows += count;
+    if (rows >= target || g === groups.length - 1) {
+      shares.push({ rows: { start, end: start + rows }, bytes: (source.size * rows) / Math.max(1, total) });
+      start += rows;
+      rows = 0;
+    }
+  });
+  return shares.length < 2 ? null : shares;
 }
 
 /** The source split at row starts into about size / rangeBytes ranges (empty ones dropped). */
@@ -77,8 +106,7 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
   let last: { features: string; layout: RangeLayout; result: FirstPassResult } | null = null;
   const key = (features: readonly number[]): string => features.join(',');
 
-  async function runFirst(source: ByteSource, inspection: TableInspection, plan: FirstPassPlan, control: RunControl | undefined): Promise<FirstPassResult> {
-    const ranges = await splitAtRowStarts(source, scanner.workers, scanner.rangeBytes);
+  async function runFirst(source: ByteSource, inspection: TableInspection, plan: FirstPassPlan, control: RunControl | undefined, ranges: SourceShare[]): Promise<FirstPassResult> {
     const parts: FirstRangePart[] = new Array(ranges.length);
     const usedDone: number[] = new Array(ranges.length).fill(-1);
     const columns = { label: plan.label, features: plan.features, featureNames: plan.featureNames };
@@ -86,9 +114,10 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
       // Hash for the duplicate check only the rows the single-thread check could still reach.
       let before = 0;
       for (let i = 0; i < index; i++) if (usedDone[i]! > 0) before += usedDone[i]!;
-      const range = ranges[index]!;
+      const share = ranges[index]!;
       return {
-        range: index === 0 ? range : { ...range, origin: { line: 1, row: 0 } },
+        // Text ranges after the first number their rows and lines from their own start.
+        ...(share.range && index > 0 ? { ...share, range: { ...share.range, origin: { line: 1, row: 0 } } } : share),
         duplicateBudget: Math.max(0, DUPLICATE_CHECK_CAPACITY - before),
       };
     };
@@ -112,7 +141,7 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
     const folds = plan.folds!;
     const columns = { label: plan.label, features: plan.features, featureNames: plan.featureNames };
     const task = (index: number) => ({
-      range: layout.ranges[index]!,
+      ...layout.ranges[index]!,
       foldRows: layout.appearance.map((label) => layout.usedBefore[index]!.get(label) ?? 0),
     });
     const results = (await scanner
@@ -124,19 +153,21 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
 
   return {
     async first(source, inspection, plan, control, rowLimit) {
-      if (rowLimit !== null || plan.range || !canScanInParallel(scanner, inspection, source.size)) return firstPass(source, inspection, plan, control, rowLimit);
+      if (rowLimit !== null || plan.range || plan.rows || !canScanInParallel(scanner, inspection, source.size)) return firstPass(source, inspection, plan, control, rowLimit);
       if (!plan.moments) {
         // Only the folds are wanted: from the layout of pass 1 over the same columns.
         if (plan.folds && last?.features === key(plan.features)) return runFolds(inspection, plan, control, last.layout, last.result);
         return firstPass(source, inspection, plan, control, rowLimit);
       }
       // Folds are collected after pass 1, when they are known to be needed (see the module comment).
-      return runFirst(source, inspection, plan, control);
+      const shares = await splitSource(source, inspection, scanner);
+      if (!shares) return firstPass(source, inspection, plan, control, rowLimit);
+      return runFirst(source, inspection, plan, control, shares);
     },
 
     async second(input, control) {
       const layout = last?.features === key(input.features) ? last.layout : null;
-      if (!layout || input.rowLimit !== null || input.range) return secondPass(input, control);
+      if (!layout || input.rowLimit !== null || input.range || input.rows) return secondPass(input, control);
       const crossValidation = crossValidationModel(input);
       if (!crossValidation) return secondPass(input, control);
       const classRowsBefore = (index: number): number[] => input.solution.labels.map((label) => layout.usedBefore[index]!.get(label) ?? 0);
@@ -173,7 +204,7 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
           },
           layout.ranges.length,
           (index) => ({
-            range: layout.ranges[index]!,
+            ...layout.ranges[index]!,
             classRows: classRowsBefore(index),
             ...(crossValidation.kind === 'kfold' ? { foldRows: foldRowsBefore(index) } : {}),
           }),

@@ -35,6 +35,8 @@ export interface FirstPassPlan {
   moments: boolean;
   /** Text: scan only the rows that start in this byte range (one share of a parallel scan). */
   range?: ByteRange;
+  /** Parquet: scan only these data rows (one share of a parallel scan). */
+  rows?: { start: number; end: number };
   /**
    * Accumulators that outlive the pass (a parallel worker's, over all its ranges): rows go into
    * them, and the result then holds `moments: null` (the caller reads them at the end).
@@ -128,6 +130,7 @@ export async function firstPass(
       plan: { label: plan.label, features: plan.features },
       control: pass.control,
       ...(plan.range ? { range: plan.range } : {}),
+      ...(plan.rows ? { rows: plan.rows } : {}),
       onBatch: (batch, dictionary) => {
         labels = dictionary;
         const { values } = batch;

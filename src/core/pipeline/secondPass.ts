@@ -66,6 +66,8 @@ export interface SecondPassInput {
   onScores?: (batch: ScoreBatch) => void;
   /** Text: only the rows that start in this byte range (one share of a parallel scan). */
   range?: ByteRange;
+  /** Parquet: only these data rows (one share of a parallel scan). */
+  rows?: { start: number; end: number };
   /**
    * For a range that is not the start of the file: the used rows before it, per class in the
    * solution's order (plot sample) and per order of first appearance (folds).
@@ -128,6 +130,7 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
       plan: { label: input.label, features: input.features },
       control: pass.control,
       ...(input.range ? { range: input.range } : {}),
+      ...(input.rows ? { rows: input.rows } : {}),
       onBatch: (batch, labels) => {
         while (classOfId.length < labels.length) classOfId.push(classOfLabel.get(labels[classOfId.length]!) ?? -1);
         while (orderOfId.length < labels.length) {

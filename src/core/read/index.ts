@@ -6,6 +6,7 @@
 import type { ByteSource, RunControl } from '../source';
 import { formatFromBytes, formatFromName } from './format';
 import { inspectParquet, scanParquet } from './parquet';
+export { parquetRowGroups } from './parquet';
 import { readCopy } from './readBytes';
 import { inspectDelimitedText } from './textInspect';
 import { scanDelimitedText } from './textScan';

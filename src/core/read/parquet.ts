@@ -277,10 +277,21 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
     return id;
   };
 
+  const only = request.rows;
+  let scanned = 0;
   let groupStart = 0;
   for (const group of opened.metadata.row_groups) {
-    for (const [rangeStart, rangeEnd] of rowRanges(group, groupStart, new Set(needed), 8 * d + 4, tuning)) {
+    const groupEnd = groupStart + Number(group.num_rows);
+    if (only && (groupEnd <= only.start || groupStart >= only.end)) {
+      groupStart = groupEnd;
+      continue;
+    }
+    for (const [fullStart, fullEnd] of rowRanges(group, groupStart, new Set(needed), 8 * d + 4, tuning)) {
+      const rangeStart = only ? Math.max(fullStart, only.start) : fullStart;
+      const rangeEnd = only ? Math.min(fullEnd, only.end) : fullEnd;
+      if (rangeStart >= rangeEnd) continue;
       const rows = rangeEnd - rangeStart;
+      scanned += rows;
       if (columnLabels.length < rows) {
         columnValues = features.map(() => new Float64Array(rows));
         columnLabels = new Int32Array(rows);
@@ -336,6 +347,12 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
       columns: imprecise,
     });
   }
-  return { rows: opened.rows, labels: labelTexts.slice(), nonNumeric, nonNumericExamples, raggedRows: 0, raggedExamples: [], notes };
+  return { rows: only ? scanned : opened.rows, labels: labelTexts.slice(), nonNumeric, nonNumericExamples, raggedRows: 0, raggedExamples: [], notes };
+}
+
+/** The number of rows in each row group, in file order (a parallel scan splits between groups). */
+export async function parquetRowGroups(source: ByteSource): Promise<number[]> {
+  const opened = await openParquet(source);
+  return opened.metadata.row_groups.map((group) => Number(group.num_rows));
 }
 

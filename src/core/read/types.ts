@@ -136,6 +136,8 @@ export interface ScanRequest {
   control?: RunControl;
   /** Text formats: scan only rows that start inside this range. */
   range?: ByteRange;
+  /** Parquet: scan only the data rows [start, end) (a parallel scan's share: whole row groups). */
+  rows?: { start: number; end: number };
   /** Which pass of the caller this scan is, for its progress events; default `rows`. */
   pass?: Progress['pass'];
 }
