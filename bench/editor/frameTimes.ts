@@ -28,7 +28,7 @@ export interface FrameTimes {
 }
 
 /** The stored report with a plot sample of `points` invented points. */
-function reportWith(points: number): FitReport {
+export function reportWithPoints(points: number): FitReport {
   const report = readFixture('pump-faults.json');
   const K = report.classes.length;
   let state = 12345;
@@ -38,15 +38,20 @@ function reportWith(points: number): FitReport {
   };
   const normal = (): number => Math.sqrt(-2 * Math.log(uniform())) * Math.cos(2 * Math.PI * uniform());
   const axes = Math.min(3, report.discriminant.eigenvalues.length);
-  const sample: FitReport['sample'] = { total: points, rows: [], lines: [], classIndex: [], ld: [], pc: [], topFeatures: { names: report.sample.topFeatures.names, values: [] } };
-  const top = report.sample.topFeatures.names.length;
+  // Above 100 000 points the tooltip's feature values are left out and the scores rounded to four
+  // decimals: the message stays well under the page's string limits, and the drawing is the same.
+  const lean = points > 100_000;
+  const round = (v: number): number => (lean ? Math.round(v * 1e4) / 1e4 : v);
+  const names = lean ? [] : report.sample.topFeatures.names;
+  const sample: FitReport['sample'] = { total: points, rows: [], lines: [], classIndex: [], ld: [], pc: [], topFeatures: { names, values: [] } };
+  const top = names.length;
   for (let i = 0; i < points; i++) {
     const c = i % K;
     sample.rows.push(i);
     sample.lines!.push(i + 2);
     sample.classIndex.push(c);
-    sample.ld.push(Array.from({ length: axes }, (_, a) => 3 * Math.cos(c + a) + normal()));
-    sample.pc.push([2 * Math.sin(c) + 1.5 * normal(), normal()]);
+    sample.ld.push(Array.from({ length: axes }, (_, a) => round(3 * Math.cos(c + a) + normal())));
+    sample.pc.push([round(2 * Math.sin(c) + 1.5 * normal()), round(normal())]);
     sample.topFeatures.values.push(Array.from({ length: top }, () => Math.round(1000 * normal()) / 1000));
   }
   return { ...report, options: { ...report.options, plotBudget: points }, rows: { ...report.rows, total: points, used: points, dropped: 0 }, sample };
@@ -96,7 +101,7 @@ export async function measureFrames(pointCounts: number[], seconds: number): Pro
   try {
     for (const points of pointCounts) {
       const { page } = await openPanel(browser, server.origin, { width: 1400, height: 1000 });
-      const report = reportWith(points);
+      const report = reportWithPoints(points);
       const started = Date.now();
       await showReport(page, report);
       await page.waitForFunction(() => document.querySelectorAll('.plot canvas').length > 0);

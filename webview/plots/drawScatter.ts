@@ -15,7 +15,11 @@ import { blendPoints, coverageMask, hexColour, type PointLayer } from './pointRa
 
 const CHUNK = 4096;
 
-export function drawScatter(context: CanvasRenderingContext2D, scene: ScatterScene, projection: Projection, theme: PlotTheme): void {
+/** Device-pixel positions of the points of the frame being drawn (see drawPoints). */
+let positionBuffer = new Float32Array(0);
+
+/** `pointLimit`: draw at most about this many points, an even subsample of each class (while the view moves). */
+export function drawScatter(context: CanvasRenderingContext2D, scene: ScatterScene, projection: Projection, theme: PlotTheme, pointLimit = Infinity): void {
   const { area } = projection;
   context.fillStyle = theme.background;
   context.fillRect(0, 0, area.width, area.height);
@@ -40,7 +44,7 @@ export function drawScatter(context: CanvasRenderingContext2D, scene: ScatterSce
   });
   context.setLineDash([]);
 
-  drawPoints(context, scene, projection);
+  drawPoints(context, scene, projection, pointLimit);
 
   for (let c = 0; c < scene.classes.length; c++) {
     const centroid = scene.centroids[c];
@@ -56,8 +60,9 @@ export function drawScatter(context: CanvasRenderingContext2D, scene: ScatterSce
   context.restore();
 }
 
-function drawPoints(context: CanvasRenderingContext2D, scene: ScatterScene, projection: Projection): void {
+function drawPoints(context: CanvasRenderingContext2D, scene: ScatterScene, projection: Projection, pointLimit: number): void {
   const { radius, alpha } = markerStyle(scene.x.length);
+  const step = Math.max(1, Math.ceil(scene.x.length / pointLimit));
   // Pixels are written in device units: map the plot's CSS pixels through the canvas transform.
   const transform = context.getTransform();
   const scale = transform.a;
@@ -75,16 +80,22 @@ function drawPoints(context: CanvasRenderingContext2D, scene: ScatterScene, proj
   const by = transform.d * (area.bottom + view.y0 * projection.scaleY) + transform.f;
   const layers: PointLayer[] = [];
   const longest = Math.max(0, ...scene.members.map((m) => m.length));
+  // One buffer for the positions of every layer, kept from frame to frame: a new array per chunk
+  // and frame was megabytes of garbage per frame at a million points (collector pauses).
+  let needed = 0;
+  for (const members of scene.members) needed += 2 * (Math.ceil(members.length / step) + Math.ceil(members.length / CHUNK));
+  if (positionBuffer.length < needed) positionBuffer = new Float32Array(needed);
+  let used = 0;
   for (let start = 0; start < longest; start += CHUNK) {
     for (let c = 0; c < scene.members.length; c++) {
       const members = scene.members[c];
       if (start >= members.length) continue;
       const end = Math.min(members.length, start + CHUNK);
-      const positions = new Float32Array(2 * (end - start));
+      const positions = positionBuffer.subarray(used, used + 2 * Math.ceil((end - start) / step));
       let count = 0;
       const classX = scene.classX[c];
       const classY = scene.classY[c];
-      for (let k = start; k < end; k++) {
+      for (let k = start; k < end; k += step) {
         const x = classX[k];
         const y = classY[k];
         if (!(x >= x0 && x <= x1 && y >= y0 && y <= y1)) continue;
@@ -92,6 +103,7 @@ function drawPoints(context: CanvasRenderingContext2D, scene: ScatterScene, proj
         positions[2 * count + 1] = ky * y + by;
         count++;
       }
+      used += 2 * count;
       const style = scene.classes[c];
       layers.push({ colour: hexColour(style.colour), mask: coverageMask(style.shape, radius * scale), positions, count });
     }

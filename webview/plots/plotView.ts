@@ -35,6 +35,14 @@ export interface PlotViewOptions {
 const PICK_RADIUS = 8;
 const KEY_ZOOM = 0.8;
 
+/**
+ * Points drawn per frame while a pan or zoom is under way: an even subsample (every k-th point of
+ * each class) keeps frames near 60 per second up to a million points; the full sample follows
+ * SETTLE_MS after the last movement.
+ */
+export const MOVING_POINT_LIMIT = 100_000;
+const SETTLE_MS = 150;
+
 export class PlotView {
   readonly element: HTMLElement;
   private readonly base: HTMLCanvasElement;
@@ -53,6 +61,9 @@ export class PlotView {
   private readonly resizeObserver: ResizeObserver;
   private drag: { x: number; y: number; view: ViewRange; moved: boolean } | null = null;
   private saveTimer = 0;
+  /** Set while a pan or zoom is under way (cleared once it pauses): frames then draw fewer points. */
+  private moving = false;
+  private settleTimer = 0;
   private pendingView: ViewRange | null = null;
 
   constructor(private readonly options: PlotViewOptions) {
@@ -93,6 +104,7 @@ export class PlotView {
     this.resizeObserver.disconnect();
     cancelAnimationFrame(this.frame);
     window.clearTimeout(this.saveTimer);
+    window.clearTimeout(this.settleTimer);
   }
 
   /** Redraws on the next animation frame (at most once per frame). */
@@ -132,7 +144,7 @@ export class PlotView {
   private render(context: CanvasRenderingContext2D, width: number, height: number, theme: PlotTheme, ratio: number): void {
     const { scene } = this.options;
     const area = plotArea(width, height, theme.fontSize);
-    if (scene.kind === 'scatter') drawScatter(context, scene, new Projection(this.view, area), theme);
+    if (scene.kind === 'scatter') drawScatter(context, scene, new Projection(this.view, area), theme, this.moving ? MOVING_POINT_LIMIT : Infinity);
     else this.densityGeometry = drawDensity(context, scene, this.view, area, theme);
   }
 
@@ -194,6 +206,14 @@ export class PlotView {
   private setView(view: ViewRange | null): void {
     window.clearTimeout(this.saveTimer);
     this.pendingView = view;
+    // While the view moves, frames draw an even subsample of a very large sample; once the
+    // gesture pauses, the whole sample is drawn again.
+    this.moving = true;
+    window.clearTimeout(this.settleTimer);
+    this.settleTimer = window.setTimeout(() => {
+      this.moving = false;
+      this.schedule();
+    }, SETTLE_MS);
     this.schedule();
     if (!view) {
       this.options.store.setView(this.options.scene.id, null);
