@@ -25,7 +25,7 @@ export interface TextTuning {
 }
 
 export const DEFAULT_TEXT_TUNING: TextTuning = {
-  chunkBytes: 4 * 1024 * 1024,
+  chunkBytes: 1 * 1024 * 1024,
   maxRowBytes: 64 * 1024 * 1024,
   batchRows: 4096,
   headBytes: 1024 * 1024,
