@@ -65,10 +65,12 @@ export function createParallelScanner(path: string, name: string, options: Paral
     return pool;
   };
 
-  const localSource = async (): Promise<ByteSource> => {
+  let localNamed: Promise<ByteSource> | null = null;
+  const localSource = (): Promise<ByteSource> => {
+    // One source object for every pass: readers may keep what they learnt of it (a Parquet footer).
     local ??= openFileSource(path);
-    const file = await local;
-    return { name, size: file.size, read: (offset, length) => file.read(offset, length) };
+    localNamed ??= local.then((file) => ({ name, size: file.size, read: (offset, length) => file.read(offset, length) }));
+    return localNamed;
   };
 
   return {
@@ -202,6 +204,7 @@ export function createParallelScanner(path: string, name: string, options: Paral
       await stopAll();
       const file = local;
       local = null;
+      localNamed = null;
       await (await file)?.close();
     },
   };

@@ -33,11 +33,13 @@ let runner: PassJobRunner | null = null;
 // Messages are handled one after the other: a range is scanned to its end before the next.
 let queue: Promise<void> = Promise.resolve();
 
+/** One source object for all the messages: readers may keep what they learnt of it (a Parquet footer). */
+const source: Promise<ByteSource> = opened.then((file) => ({ name, size: file.size, read: (offset, length) => file.read(offset, length) }));
+
 async function handle(message: ToScanWorker): Promise<void> {
-  const file = await opened;
-  const source: ByteSource = { name, size: file.size, read: (offset, length) => file.read(offset, length) };
+  const sourceOfFile = await source;
   if (message.type === 'job') {
-    runner = openPassJob(source, message.job);
+    runner = openPassJob(sourceOfFile, message.job);
   } else if (message.type === 'range') {
     const index = message.index;
     let posted = 0;

@@ -52,7 +52,23 @@ interface OpenedParquet {
   rows: number;
 }
 
-async function openParquet(source: ByteSource): Promise<OpenedParquet> {
+/**
+ * The footer of each source already opened: a parallel scan reads a file in many shares of row
+ * groups, and a large footer (row groups × columns) would be decoded again for each.
+ */
+const openedFooters = new WeakMap<ByteSource, Promise<OpenedParquet>>();
+
+function openParquet(source: ByteSource): Promise<OpenedParquet> {
+  let opened = openedFooters.get(source);
+  if (!opened) {
+    opened = readFooter(source);
+    openedFooters.set(source, opened);
+    opened.catch(() => openedFooters.delete(source));
+  }
+  return opened;
+}
+
+async function readFooter(source: ByteSource): Promise<OpenedParquet> {
   const name = source.name;
   const invalid = (why: string, hint: string): DataError => new DataError('parquet-invalid', `${name} is not a readable Parquet file: ${why}`, { file: name }, hint);
   if (source.size < 12) throw invalid(`it is only ${source.size} bytes long.`, 'The file is truncated; write it again.');
