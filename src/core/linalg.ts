@@ -43,26 +43,16 @@ export interface CholeskyResult {
 }
 
 /**
- * Cholesky factor of a symmetric positive definite n × n matrix (reads the lower triangle),
- * row by row (Cholesky–Banachiewicz), so every inner product runs over contiguous memory.
- * Golub & Van Loan, Matrix Computations, 4th ed., Algorithm 4.2.1.
+ * Cholesky factor of a symmetric positive definite n × n matrix (reads the lower triangle), by
+ * the blocked right-looking factorisation below (factorInPlace) without pivoting.
+ * Golub & Van Loan, Matrix Computations, 4th ed., Algorithms 4.2.1 and 4.2.2 (block Cholesky).
  */
 export function cholesky(a: Float64Array, n: number): CholeskyResult {
-  const l = new Float64Array(n * n);
-  for (let i = 0; i < n; i++) {
-    const rowI = i * n;
-    for (let j = 0; j <= i; j++) {
-      const rowJ = j * n;
-      const sum = a[rowI + j] - dotRange(l, rowI, l, rowJ, j);
-      if (i === j) {
-        if (!(sum > 0)) return { factor: l, positiveDefinite: false, failedAt: i };
-        l[rowI + i] = Math.sqrt(sum);
-      } else {
-        l[rowI + j] = sum / l[rowJ + j];
-      }
-    }
-  }
-  return { factor: l, positiveDefinite: true, failedAt: -1 };
+  const l = lowerCopy(a, n);
+  const { failedAt } = factorInPlace(l, n, 0, false, null, null);
+  const done = failedAt < 0 ? n : failedAt;
+  clearBeyond(l, n, done);
+  return { factor: l, positiveDefinite: failedAt < 0, failedAt };
 }
 
 export interface PivotedCholeskyResult {
@@ -81,64 +71,214 @@ export interface PivotedCholeskyResult {
 }
 
 /**
- * Cholesky with complete (diagonal) pivoting of a symmetric positive semidefinite n × n matrix:
- * at each step the largest remaining Schur-complement diagonal becomes the pivot (ties go to the
- * lowest original index); the factorization stops once that largest value is ≤ `tolerance`.
- * Higham, "Analysis of the Cholesky decomposition of a semi-definite matrix" (1990), and LAPACK
- * dpstf2. The rank it reveals is that of A to the tolerance the caller chose from the data.
+ * Cholesky with complete (diagonal) pivoting of a symmetric positive semidefinite n × n matrix
+ * (reads the lower triangle): at each step the largest remaining Schur-complement diagonal becomes
+ * the pivot (ties go to the lowest original index); the factorization stops once that largest
+ * value is ≤ `tolerance`. Higham, "Analysis of the Cholesky decomposition of a semi-definite
+ * matrix" (1990), and LAPACK dpstf2/dpstrf (the blocked form used here, see factorInPlace). The
+ * rank it reveals is that of A to the tolerance the caller chose from the data.
  */
 export function pivotedCholesky(a: Float64Array, n: number, tolerance: number): PivotedCholeskyResult {
   const pivots = new Int32Array(n);
   for (let i = 0; i < n; i++) pivots[i] = i;
-  const l = new Float64Array(n * n);
-  const sumOfSquares = new Float64Array(n); // Σ_j<k L[p][j]², by position
   const residual = new Float64Array(n);
-  let rank = 0;
-  for (let k = 0; k < n; k++) {
-    // Choose the pivot among positions k..n−1.
-    let best = -1;
-    let bestValue = -Infinity;
-    for (let p = k; p < n; p++) {
-      const value = a[pivots[p] * n + pivots[p]] - sumOfSquares[p];
-      if (value > bestValue || (value === bestValue && pivots[p] < pivots[best])) {
-        bestValue = value;
-        best = p;
-      }
-    }
-    if (!(bestValue > tolerance)) {
-      for (let p = k; p < n; p++) residual[p] = Math.max(0, a[pivots[p] * n + pivots[p]] - sumOfSquares[p]);
-      break;
-    }
-    if (best !== k) {
-      const t = pivots[k];
-      pivots[k] = pivots[best];
-      pivots[best] = t;
-      const s = sumOfSquares[k];
-      sumOfSquares[k] = sumOfSquares[best];
-      sumOfSquares[best] = s;
-      const rowK = k * n;
-      const rowB = best * n;
-      for (let j = 0; j < k; j++) {
-        const u = l[rowK + j];
-        l[rowK + j] = l[rowB + j];
-        l[rowB + j] = u;
-      }
-    }
-    const pivot = Math.sqrt(bestValue);
-    const rowK = k * n;
-    l[rowK + k] = pivot;
-    const original = pivots[k];
-    const originalRow = original * n;
-    for (let p = k + 1; p < n; p++) {
-      const rowP = p * n;
-      // A is symmetric: read row `original`, not its column.
-      const value = (a[originalRow + pivots[p]] - dotRange(l, rowP, l, rowK, k)) / pivot;
-      l[rowP + k] = value;
-      sumOfSquares[p] += value * value;
-    }
-    rank = k + 1;
-  }
+  const l = lowerCopy(a, n);
+  const { rank } = factorInPlace(l, n, tolerance, true, pivots, residual);
+  clearBeyond(l, n, rank);
   return { rank, pivots, factor: l, residual };
+}
+
+/** Columns of a panel: the trailing update is a rank-PANEL product over rows held contiguously. */
+const PANEL = 32;
+
+/** The lower triangle of a (diagonal included) in a new n × n array; the upper part is zero. */
+function lowerCopy(a: Float64Array, n: number): Float64Array {
+  const l = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) l.set(a.subarray(i * n, i * n + i + 1), i * n);
+  return l;
+}
+
+/** Zeroes every column ≥ `done` (the unfactored Schur complement), keeping columns 0..done−1. */
+function clearBeyond(l: Float64Array, n: number, done: number): void {
+  for (let i = done; i < n; i++) l.fill(0, i * n + done, i * n + i + 1);
+}
+
+/**
+ * In-place Cholesky of the lower triangle of w (n × n, row-major), blocked as LAPACK dpstrf
+ * arranges it: PANEL columns at a time, each column of a panel computed from the Schur complement
+ * as it stood at the panel's start minus the panel's earlier columns (so pivot choice sees the
+ * current Schur diagonal), then one symmetric rank-PANEL update of the trailing lower triangle
+ * (trailingUpdate). The update is where the n³/6 multiply-adds are, and it runs over a copy of
+ * the panel with its rows contiguous, two rows by four columns at a time.
+ *
+ * With `pivoting`, the largest remaining Schur diagonal becomes the pivot (ties: lowest original
+ * index, kept in `pivots`), rows and columns are swapped symmetrically, and factoring stops when
+ * that value is ≤ `tolerance` (the residual diagonal is written to `residual`); without it, a pivot
+ * ≤ 0 (or NaN) stops it and is returned as `failedAt`. Columns 0..rank−1 are complete for every row.
+ */
+function factorInPlace(
+  w: Float64Array,
+  n: number,
+  tolerance: number,
+  pivoting: boolean,
+  pivots: Int32Array | null,
+  residual: Float64Array | null,
+): { rank: number; failedAt: number } {
+  const diagonal = new Float64Array(n);
+  const panel = new Float64Array(n * PANEL);
+  for (let j0 = 0; j0 < n; j0 += PANEL) {
+    const j1 = Math.min(n, j0 + PANEL);
+    for (let p = j0; p < n; p++) diagonal[p] = w[p * n + p];
+    for (let k = j0; k < j1; k++) {
+      let best = k;
+      let bestValue = diagonal[k];
+      if (pivoting) {
+        best = -1;
+        bestValue = -Infinity;
+        for (let p = k; p < n; p++) {
+          const value = diagonal[p];
+          if (value > bestValue || (value === bestValue && pivots![p] < pivots![best])) {
+            bestValue = value;
+            best = p;
+          }
+        }
+        if (!(bestValue > tolerance)) {
+          for (let p = k; p < n; p++) residual![p] = Math.max(0, diagonal[p]);
+          return { rank: k, failedAt: -1 };
+        }
+        if (best !== k) {
+          symmetricSwap(w, n, k, best);
+          const t = pivots![k];
+          pivots![k] = pivots![best];
+          pivots![best] = t;
+          const s = diagonal[k];
+          diagonal[k] = diagonal[best];
+          diagonal[best] = s;
+        }
+      } else if (!(bestValue > 0)) {
+        return { rank: k, failedAt: k };
+      }
+      const pivot = Math.sqrt(bestValue);
+      const rowK = k * n;
+      w[rowK + k] = pivot;
+      const used = k - j0;
+      for (let p = k + 1; p < n; p++) {
+        const rowP = p * n;
+        const value = (w[rowP + k] - dotRange(w, rowP + j0, w, rowK + j0, used)) / pivot;
+        w[rowP + k] = value;
+        diagonal[p] -= value * value;
+      }
+    }
+    if (j1 < n) {
+      const width = j1 - j0;
+      for (let p = j1; p < n; p++) {
+        const rowP = p * n + j0;
+        const out = p * PANEL;
+        for (let t = 0; t < width; t++) panel[out + t] = w[rowP + t];
+      }
+      trailingUpdate(w, n, j1, panel, width);
+    }
+  }
+  return { rank: n, failedAt: -1 };
+}
+
+/**
+ * Swaps positions k < b of a symmetric matrix held in its lower triangle (LAPACK dpstf2's dswap
+ * calls): the computed parts of rows k and b, their diagonals, and the entries of columns k and b.
+ */
+function symmetricSwap(w: Float64Array, n: number, k: number, b: number): void {
+  const rowK = k * n;
+  const rowB = b * n;
+  for (let j = 0; j < k; j++) {
+    const t = w[rowK + j];
+    w[rowK + j] = w[rowB + j];
+    w[rowB + j] = t;
+  }
+  let t = w[rowK + k];
+  w[rowK + k] = w[rowB + b];
+  w[rowB + b] = t;
+  for (let i = k + 1; i < b; i++) {
+    t = w[i * n + k];
+    w[i * n + k] = w[rowB + i];
+    w[rowB + i] = t;
+  }
+  for (let i = b + 1; i < n; i++) {
+    const row = i * n;
+    t = w[row + k];
+    w[row + k] = w[row + b];
+    w[row + b] = t;
+  }
+}
+
+/**
+ * w[p][q] −= Σ_t panel[p][t]·panel[q][t] for start ≤ q ≤ p < n (the trailing lower triangle),
+ * panel rows of `width` values at stride PANEL: two rows by four columns per turn, so six loads
+ * feed eight multiply-adds.
+ */
+function trailingUpdate(w: Float64Array, n: number, start: number, panel: Float64Array, width: number): void {
+  let p = start;
+  for (; p + 1 < n; p += 2) {
+    const a0 = p * PANEL;
+    const a1 = a0 + PANEL;
+    const row0 = p * n;
+    const row1 = row0 + n;
+    let q = start;
+    for (; q + 3 <= p; q += 4) {
+      const b0 = q * PANEL;
+      const b1 = b0 + PANEL;
+      const b2 = b1 + PANEL;
+      const b3 = b2 + PANEL;
+      let s00 = 0;
+      let s01 = 0;
+      let s02 = 0;
+      let s03 = 0;
+      let s10 = 0;
+      let s11 = 0;
+      let s12 = 0;
+      let s13 = 0;
+      for (let t = 0; t < width; t++) {
+        const x0 = panel[a0 + t];
+        const x1 = panel[a1 + t];
+        const y0 = panel[b0 + t];
+        const y1 = panel[b1 + t];
+        const y2 = panel[b2 + t];
+        const y3 = panel[b3 + t];
+        s00 += x0 * y0;
+        s01 += x0 * y1;
+        s02 += x0 * y2;
+        s03 += x0 * y3;
+        s10 += x1 * y0;
+        s11 += x1 * y1;
+        s12 += x1 * y2;
+        s13 += x1 * y3;
+      }
+      w[row0 + q] -= s00;
+      w[row0 + q + 1] -= s01;
+      w[row0 + q + 2] -= s02;
+      w[row0 + q + 3] -= s03;
+      w[row1 + q] -= s10;
+      w[row1 + q + 1] -= s11;
+      w[row1 + q + 2] -= s12;
+      w[row1 + q + 3] -= s13;
+    }
+    for (; q <= p + 1; q++) {
+      const b = q * PANEL;
+      let s0 = 0;
+      let s1 = 0;
+      for (let t = 0; t < width; t++) {
+        const y = panel[b + t];
+        s0 += panel[a0 + t] * y;
+        s1 += panel[a1 + t] * y;
+      }
+      if (q <= p) w[row0 + q] -= s0;
+      w[row1 + q] -= s1;
+    }
+  }
+  if (p < n) {
+    const a0 = p * PANEL;
+    const row0 = p * n;
+    for (let q = start; q <= p; q++) w[row0 + q] -= dotRange(panel, a0, panel, q * PANEL, width);
+  }
 }
 
 export interface OrderedCholeskyResult {

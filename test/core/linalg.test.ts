@@ -88,6 +88,15 @@ describe('linalg', () => {
       }
     });
 
+    it('factors across several panels (n = 101, odd) like ml-matrix does', () => {
+      const n = 101;
+      const a = randomGram(n, n + 5, 13);
+      const ours = cholesky(a, n);
+      assert.ok(ours.positiveDefinite);
+      const theirs = new CholeskyDecomposition(toMatrix(a, n, n)).lowerTriangularMatrix.to1DArray();
+      assert.ok(relativeDifference(ours.factor, theirs) < 1e-11);
+    });
+
     it('reports where a matrix stops being positive definite', () => {
       const a = randomGram(5, 3, 4);
       const result = cholesky(a, 5);
@@ -115,6 +124,47 @@ describe('linalg', () => {
         }
       }
       assert.ok(worst < 1e-10, `reconstruction error ${worst}`);
+      assert.deepEqual(
+        [...pivots].sort((x, y) => x - y),
+        Array.from({ length: n }, (_, i) => i),
+      );
+    });
+
+    it('across several panels: rank, P A Pᵀ = L Lᵀ, pivots by decreasing Schur diagonal, copies set aside', () => {
+      const n = 150;
+      const rank = 97;
+      const base = randomGram(n - 3, rank, 21);
+      // Columns 147, 148, 149 copy columns 5, 60 and 146: exactly dependent, found in later panels.
+      const source = [...Array.from({ length: n - 3 }, (_, i) => i), 5, 60, 146];
+      const a = new Float64Array(n * n);
+      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) a[i * n + j] = base[source[i] * (n - 3) + source[j]];
+      const result = pivotedCholesky(a, n, 1e-9 * n);
+      assert.equal(result.rank, rank);
+      const { pivots, factor } = result;
+      let scale = 0;
+      for (const v of a) scale = Math.max(scale, Math.abs(v));
+      let worst = 0;
+      for (let i = 0; i < n; i++) {
+        for (let j = 0; j <= i; j++) {
+          let s = 0;
+          for (let k = 0; k < rank; k++) s += factor[i * n + k] * factor[j * n + k];
+          worst = Math.max(worst, Math.abs(s - a[pivots[i] * n + pivots[j]]));
+        }
+        for (let j = i + 1; j < n; j++) assert.equal(factor[i * n + j], 0);
+        for (let j = rank; j <= i; j++) assert.equal(factor[i * n + j], 0);
+      }
+      assert.ok(worst < 1e-10 * scale, `reconstruction error ${worst}`);
+      // Complete pivoting takes the Schur diagonals in decreasing order.
+      for (let k = 1; k < rank; k++) assert.ok(factor[k * n + k] <= factor[(k - 1) * n + k - 1] * (1 + 1e-12));
+      // A copy never becomes a pivot ahead of its original, whose index is lower.
+      const kept = new Set(pivots.subarray(0, rank));
+      for (const [copy, original] of [
+        [147, 5],
+        [148, 60],
+        [149, 146],
+      ]) {
+        assert.ok(!kept.has(copy) || !kept.has(original), `copy ${copy} and original ${original} both kept`);
+      }
       assert.deepEqual(
         [...pivots].sort((x, y) => x - y),
         Array.from({ length: n }, (_, i) => i),
