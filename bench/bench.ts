@@ -1,7 +1,8 @@
 /**
  * `npm run bench`: the side-by-side benchmark (not a unit test). Generates its tables on the fly
  * into the git-ignored bench-data/ (never committed), then, alternating over several rounds, runs
- * on the same files: the floor (reading the file), scatterwise, and — when installed — the
+ * on the same files: the floor (reading the file), scatterwise (and, on the narrow table, its CSV
+ * reader alone and csv-parse alone, the reader's targets), and — when installed — the
  * notebook way (pandas + scikit-learn) and the R way (data.table + MASS), each in a child process
  * of its own so its peak memory is its own. Besides the tables it measures the moments update
  * against numpy's X.T @ X, the fit from moments at d = 1000, the panel's frame times in headless
@@ -277,6 +278,12 @@ function evaluateTargets(
       const share = ours.maxRssMB / notebook.maxRssMB;
       targets.push({ what: 'narrow CSV peak memory under 10% of pandas + scikit-learn', holds: share < 0.1, measured: `${(100 * share).toFixed(1)}% (${ours.maxRssMB.toFixed(0)} MB vs ${notebook.maxRssMB.toFixed(0)} MB)` });
     } else targets.push({ what: 'narrow CSV at least 8× faster than pandas + scikit-learn, memory under 10% of theirs', holds: null, measured: 'Python with pandas and scikit-learn not installed' });
+    const reader = narrow.get('reader');
+    const csvParse = narrow.get('csv-parse');
+    const floor = narrow.get('floor');
+    if (reader && floor) targets.push({ what: `reader (one thread, into the moments) at least 50% of the floor's MB/s${note}`, holds: floor.seconds / reader.seconds >= 0.5, measured: `${(100 * floor.seconds / reader.seconds).toFixed(0)}% (${reader.seconds.toFixed(2)} s vs floor ${floor.seconds.toFixed(2)} s)` });
+    if (reader && csvParse) targets.push({ what: `reader at least 4× csv-parse${note}`, holds: csvParse.seconds / reader.seconds >= 4, measured: `${(csvParse.seconds / reader.seconds).toFixed(1)}× (${reader.seconds.toFixed(2)} s vs ${csvParse.seconds.toFixed(2)} s)` });
+    if (reader) targets.push({ what: 'reader peak memory under 200 MB', holds: reader.maxRssMB < 200, measured: `${reader.maxRssMB.toFixed(0)} MB` });
     targets.push({ what: 'narrow CSV peak memory under 200 MB', holds: ours.maxRssMB < 200, measured: `${ours.maxRssMB.toFixed(0)} MB` });
     if (one) {
       const speedup = one.seconds / ours.seconds;

@@ -56,7 +56,7 @@ export function tableMarkdown(shape: TableShape, csvBytes: number, rows: Map<Too
   ];
   const floor = rows.get('floor');
   for (const [tool, s] of rows) {
-    const faster = ours && tool !== 'scatterwise' && tool !== 'floor' && tool !== 'scatterwise-1' ? `${fixed(s.seconds / ours.seconds, 1)}×` : '';
+    const faster = ours && (tool === 'notebook' || tool === 'r') ? `${fixed(s.seconds / ours.seconds, 1)}×` : '';
     const floorRatio = floor && tool !== 'floor' ? fixed(floor.seconds / s.seconds, 2) : '';
     const failed = s.failed > 0 ? ` (${s.failed} failed)` : '';
     lines.push(

@@ -5,6 +5,9 @@
  *                      every byte can be faster (bench.ts --child floor)
  *   scatterwise        `scatterwise fit FILE` (text report), one worker per core
  *   scatterwise, 1 w.  the same with --workers 1: the single-thread speed the parallel passes beat
+ *   reader             (narrow table) our CSV reader alone, one thread, feeding per-class moments:
+ *                      the fast path the floor and csv-parse are compared with (bench/reader.ts)
+ *   csv-parse          (narrow table) csv-parse 7 streaming with cast: true, the reference parser
  *   pandas + sklearn   bench/alternatives/notebook.py with Debian's /usr/bin/python3
  *   data.table + MASS  bench/alternatives/lda.R with Rscript
  * Python and R run only when installed with their packages (checked once).
@@ -15,10 +18,12 @@ import { join } from 'node:path';
 import { LABEL_COLUMN } from './pumpTable';
 import type { TableShape } from './benchShapes';
 
-export type ToolId = 'floor' | 'scatterwise' | 'scatterwise-1' | 'notebook' | 'r';
+export type ToolId = 'floor' | 'reader' | 'csv-parse' | 'scatterwise' | 'scatterwise-1' | 'notebook' | 'r';
 
 export const TOOL_NAMES: Record<ToolId, string> = {
   floor: 'floor (read + count lines)',
+  reader: 'scatterwise reader → moments',
+  'csv-parse': 'csv-parse (cast: true)',
   scatterwise: 'scatterwise fit',
   'scatterwise-1': 'scatterwise fit --workers 1',
   notebook: 'pandas + scikit-learn',
@@ -50,7 +55,7 @@ export function checkAlternatives(): Availability {
 /** The tools run on a table, in the order of the table. */
 export function toolsFor(shape: TableShape, available: Availability): ToolId[] {
   const tools: ToolId[] = ['floor', 'scatterwise'];
-  if (shape.id === 'narrow') tools.push('scatterwise-1');
+  if (shape.id === 'narrow') tools.push('scatterwise-1', 'reader', 'csv-parse');
   if (available.notebook && (shape.format === 'csv' || available.notebookParquet)) tools.push('notebook');
   if (available.r && shape.format === 'csv') tools.push('r');
   return tools;
@@ -60,6 +65,10 @@ export function commandFor(tool: ToolId, shape: TableShape, benchScript: string,
   switch (tool) {
     case 'floor':
       return [process.execPath, [benchScript, '--child', 'floor', '--file', shape.file]];
+    case 'reader':
+      return [process.execPath, [join(repository, 'out/bench/reader.js'), '--child', 'scan', '--file', shape.file]];
+    case 'csv-parse':
+      return [process.execPath, [join(repository, 'out/bench/reader.js'), '--child', 'csv-parse', '--file', shape.file]];
     case 'scatterwise':
       return [process.execPath, [join(repository, 'dist/cli.js'), 'fit', shape.file, '--label', LABEL_COLUMN]];
     case 'scatterwise-1':
@@ -77,6 +86,13 @@ export function answerOf(tool: ToolId, stdout: string): { rows?: number; crossVa
     const rows = /^Rows\s+([\d,]+) rows/m.exec(stdout)?.[1];
     const cv = /Cross-validated accuracy ([\d.]+%) \(([^)]*)\)/.exec(stdout);
     return { ...(rows ? { rows: Number(rows.replace(/,/g, '')) } : {}), ...(cv ? { crossValidated: `${cv[1]} (${cv[2]})` } : {}) };
+  }
+  if (tool === 'reader' || tool === 'csv-parse') {
+    try {
+      return { rows: (JSON.parse(stdout.trim().split('\n').pop() ?? '') as { rows: number }).rows };
+    } catch {
+      return {};
+    }
   }
   if (tool === 'notebook' || tool === 'r') {
     const line = stdout.trim().split('\n').pop() ?? '';
