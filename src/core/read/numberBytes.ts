@@ -163,16 +163,15 @@ export function infinityFromBytes(bytes: Uint8Array, start: number, end: number)
   return sign * Infinity;
 }
 
-/** Where `plainNumberAt` stopped; -1 when the bytes were not a plain number it could read. */
-export const plainNumberEnd = new Int32Array(1);
-
 /**
  * The scanner's shortcut for the common cell: the number starting exactly at bytes[p] (no spaces,
- * no thousands separators), read only when Clinger's fast path applies. Sets plainNumberEnd[0] to
- * the offset after it, or to -1 when the caller must take the general route (parseNumberBytes),
- * which decides every other case. The caller checks what follows (a delimiter or the line end).
+ * no thousands separators), read only when Clinger's fast path applies. Writes it to out[at] and
+ * returns the offset after it, or returns -1 (out untouched) when the caller must take the general
+ * route (parseNumberBytes), which decides every other case. The caller checks what follows (a
+ * delimiter or the line end). The value goes to the array rather than being returned: a double
+ * returned from a call that is not inlined is boxed, one heap number per cell.
  */
-export function plainNumberAt(bytes: Uint8Array, p: number, decimal: number): number {
+export function plainNumberInto(bytes: Uint8Array, p: number, decimal: number, out: Float64Array, at: number): number {
   let c = bytes[p];
   let negative = false;
   if (c === MINUS) {
@@ -195,10 +194,7 @@ export function plainNumberAt(bytes: Uint8Array, p: number, decimal: number): nu
       c = bytes[++p];
     }
   }
-  if (digits + fractionDigits === 0) {
-    plainNumberEnd[0] = -1;
-    return NaN;
-  }
+  if (digits + fractionDigits === 0) return -1;
   let exponent = 0;
   if (c === LOWER_E || c === UPPER_E) {
     c = bytes[++p];
@@ -213,18 +209,12 @@ export function plainNumberAt(bytes: Uint8Array, p: number, decimal: number): nu
       exponentDigits++;
       c = bytes[++p];
     }
-    if (exponentDigits === 0 || (c >= DIGIT_ZERO && c <= DIGIT_ZERO + 9)) {
-      plainNumberEnd[0] = -1;
-      return NaN;
-    }
+    if (exponentDigits === 0 || (c >= DIGIT_ZERO && c <= DIGIT_ZERO + 9)) return -1;
     if (exponentNegative) exponent = -exponent;
   }
   const scale = exponent - fractionDigits;
-  if (mantissa >= TWO_TO_53 || scale < -22 || scale > 22) {
-    plainNumberEnd[0] = -1;
-    return NaN;
-  }
-  plainNumberEnd[0] = p;
+  if (mantissa >= TWO_TO_53 || scale < -22 || scale > 22) return -1;
   const magnitude = scale >= 0 ? mantissa * EXACT_POWERS_OF_TEN[scale] : mantissa / EXACT_POWERS_OF_TEN[-scale];
-  return negative ? -magnitude : magnitude;
+  out[at] = negative ? -magnitude : magnitude;
+  return p;
 }

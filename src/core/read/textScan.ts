@@ -13,7 +13,7 @@
  * test byte values only; reaching the sentinel means "the row continues in the next chunk".
  */
 import { CELL_TEXT, type CellRules } from './cellValue';
-import { parseNumberBytes, plainNumberAt, plainNumberEnd } from './numberBytes';
+import { parseNumberBytes, plainNumberInto } from './numberBytes';
 import { parseCsvRecords } from './csvRecords';
 import { LabelDictionary } from './labelDictionary';
 import { trimEnd, trimStart } from './missingTokens';
@@ -273,12 +273,11 @@ class DelimitedTextScanner {
         // The common feature cell, a plain number right before the delimiter or line end, is read
         // in the same pass that finds its end; anything else takes the general route below.
         if (plainNumbers && field < columnCount && slots[field] >= 0) {
-          const value = plainNumberAt(buffer, p, decimal);
-          const end = plainNumberEnd[0];
+          // Written in place; a cell that turns out not to end here is read again below.
+          const end = plainNumberInto(buffer, p, decimal, values, base + slots[field]);
           if (end >= 0) {
             const after = buffer[end];
             if (after === delimiter || after === LINE_FEED || (after === CARRIAGE_RETURN && buffer[end + 1] === LINE_FEED)) {
-              values[base + slots[field]] = value;
               numberRead = true;
               p = end;
               c = after;
