@@ -25,10 +25,10 @@ import {
 import type { LdaSolution } from '../lda';
 import { solveLda } from '../lda';
 import type { Moments } from '../moments';
-import { overallMean, totalScatter, withinScatter } from '../moments';
+import { meanDeviations, overallMean } from '../moments';
 import type { PcaSolution } from '../pca';
 import { solvePca } from '../pca';
-import { bartlettSequential, boxM, centroidMahalanobis, hotellingLawley, multivariateTestIssue, pillai, roy, univariateAnova, wilks } from '../stats/index';
+import { bartlettSequential, boxM, centroidMahalanobisWhitened, hotellingLawley, multivariateTestIssue, pillai, roy, univariateAnova, wilks } from '../stats/index';
 import type { FitOptions, FitReport, Finding } from '../types';
 
 /** The part of a FitReport that the moments determine. */
@@ -63,9 +63,10 @@ function sameIndices(a: readonly number[], b: readonly number[]): boolean {
   return a.length === b.length && a.every((v, i) => v === b[i]);
 }
 
-/** The p × p block of a d × d row-major matrix at the given indices. */
+/** The p × p block of a d × d row-major matrix at the given indices (the matrix itself when they are 0..d−1). */
 function block(matrix: Float64Array, d: number, indices: readonly number[]): Float64Array {
   const p = indices.length;
+  if (p === d && indices.every((v, i) => v === i)) return matrix;
   const out = new Float64Array(p * p);
   for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) out[a * p + b] = matrix[indices[a]! * d + indices[b]!]!;
   return out;
@@ -95,15 +96,31 @@ export function fitMoments(moments: Moments, options: FitOptions, dropped: reado
   const lambdas = Array.from(testEigenvalues);
   const undefinedTests = multivariateTestIssue(r, K, n);
   if (undefinedTests !== null) findings.push(testsUndefinedFinding(undefinedTests));
+  // With the exact solver the whitening factor L is the Cholesky factor of the pooled within-class
+  // correlation matrix on the kept features, whose log-determinant Box's M needs: 2 Σ ln L_qq.
+  let pooledLogDeterminant: number | undefined;
+  if (solution.solver === 'exact') {
+    const l = solution.whitening.factor;
+    pooledLogDeterminant = 0;
+    for (let q = 0; q < r; q++) pooledLogDeterminant += 2 * Math.log(l[q * r + q]!);
+  }
   const box = boxM(
     classes.map((c) => ({ count: c.count, scatter: block(c.scatter, d, kept), label: `class '${c.label}'` })),
     r,
+    pooledLogDeterminant,
   );
   if ('skipped' in box) findings.push(boxMSkippedFinding(box.skipped));
 
-  const within = withinScatter(moments);
+  // Diagonals of S_W and S_T only (summed as withinScatter and totalScatter sum them).
   const withinDiagonal = new Float64Array(d);
-  for (let j = 0; j < d; j++) withinDiagonal[j] = within[j * d + j]!;
+  for (const c of moments.classes) for (let j = 0; j < d; j++) withinDiagonal[j] += c.scatter[j * d + j]!;
+  const totalDiagonal = Float64Array.from(withinDiagonal);
+  const betweenDiagonal = new Float64Array(d);
+  meanDeviations(moments).forEach((dev, c) => {
+    const count = moments.classes[c]!.count;
+    for (let j = 0; j < d; j++) betweenDiagonal[j] += count * dev[j]! * dev[j]!;
+  });
+  for (let j = 0; j < d; j++) totalDiagonal[j] += betweenDiagonal[j]!;
   const means = new Float64Array(K * d);
   classes.forEach((c, i) => means.set(c.mean, i * d));
   const anova = univariateAnova(
@@ -118,15 +135,12 @@ export function fitMoments(moments: Moments, options: FitOptions, dropped: reado
     .sort((a, b) => b.u.F - a.u.F || a.j - b.j)
     .map(({ u }) => u);
 
-  const covariance = new Float64Array(r * r);
-  const degrees = Math.max(1, n - K);
-  for (let i = 0; i < r * r; i++) covariance[i] = solution.withinScatter[i]! / degrees;
-  const distances = centroidMahalanobis(solution.classMeans, covariance, K, r);
+  // Under the within-class covariance as solved (withinScatter / (n − K)), from its whitening.
+  const distances = centroidMahalanobisWhitened(solution.classMeans, K, solution.whitening, Math.max(1, n - K));
 
   const pca = solvePca(moments, options.pcaScale, kept);
-  const total = totalScatter(moments);
   const mean = overallMean(moments);
-  const spread = moments.features.map((_, j) => ({ mean: mean[j]!, standardDeviation: n > 1 ? Math.sqrt(Math.max(0, total[j * d + j]!) / (n - 1)) : 0 }));
+  const spread = moments.features.map((_, j) => ({ mean: mean[j]!, standardDeviation: n > 1 ? Math.sqrt(Math.max(0, totalDiagonal[j]!) / (n - 1)) : 0 }));
 
   // Findings about features, classes and the solver.
   findings.push(...removedFeatureFindings(solution.removed));

@@ -51,7 +51,12 @@ export interface BoxMSkipped {
   classIndex?: number;
 }
 
-export function boxM(classes: readonly BoxMClass[], p: number): BoxMResult | BoxMSkipped {
+/**
+ * @param pooledLogDeterminant ln|D S_pl D| (D = diag(S_pl)^(−1/2): the log-determinant of the pooled
+ *   within-class correlation matrix) when the caller already holds its Cholesky factor, as the
+ *   exact discriminant solver does on the features it kept; computed here when absent.
+ */
+export function boxM(classes: readonly BoxMClass[], p: number, pooledLogDeterminant?: number): BoxMResult | BoxMSkipped {
   const K = classes.length;
   if (K < 2) return { skipped: `Box's M compares class covariances and needs at least two classes; there ${K === 1 ? 'is one' : 'are none'}.` };
   const name = (i: number) => classes[i].label ?? `class #${i + 1}`;
@@ -76,7 +81,7 @@ export function boxM(classes: readonly BoxMClass[], p: number): BoxMResult | Box
     }
     scale[j] = 1 / Math.sqrt(variance);
   }
-  const pooledLogDet = scaledLogDeterminant(pooled, 1, scale, p);
+  const pooledLogDet = pooledLogDeterminant ?? scaledLogDeterminant(pooled, 1, scale, p);
   if (pooledLogDet === null) return { skipped: "Box's M cannot be computed: the pooled within-class covariance matrix is singular." };
   let M = nuTotal * pooledLogDet;
   for (let i = 0; i < K; i++) {

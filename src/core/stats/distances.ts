@@ -10,6 +10,36 @@
 import { cholesky, solveLower } from '../linalg';
 
 /**
+ * The same distances under Σ = S/ν when a whitening of the scatter S is at hand:
+ * S = (√D L)(√D L)ᵀ with rows and columns taken in `order` (LdaSolution.whitening), so
+ * D_ij = √ν ‖L⁻¹ D^(−1/2) (m_i − m_j)[order]‖ — no second factorisation of the same matrix.
+ * @param means class centroids, K × p row-major (p = order.length, the scatter's feature order)
+ * @param degrees ν, the divisor of the covariance (n − K for the pooled within-class covariance)
+ */
+export function centroidMahalanobisWhitened(
+  means: Float64Array,
+  K: number,
+  whitening: { order: Int32Array; factor: Float64Array; scale: Float64Array },
+  degrees: number,
+): number[][] {
+  const { order, factor, scale } = whitening;
+  const p = order.length;
+  if (means.length !== K * p || factor.length !== p * p) throw new RangeError(`means must be K × p = ${K} × ${p} and the factor p × p`);
+  const centre = new Float64Array(p);
+  for (let i = 0; i < K; i++) for (let j = 0; j < p; j++) centre[j] += means[i * p + j] / K;
+  const root = Math.sqrt(degrees);
+  const whitened: Float64Array[] = [];
+  for (let i = 0; i < K; i++) {
+    const z = new Float64Array(p);
+    for (let q = 0; q < p; q++) z[q] = ((means[i * p + order[q]] - centre[order[q]]) / scale[q]) * root;
+    solveLower(factor, p, z);
+    whitened.push(z);
+  }
+  return distancesBetween(whitened, K, p);
+}
+
+
+/**
  * @param means class centroids, K × p row-major
  * @param covariance p × p symmetric positive definite (row-major, full)
  * @returns K × K symmetric matrix of distances with a zero diagonal. When `covariance` is not
@@ -33,6 +63,11 @@ export function centroidMahalanobis(means: Float64Array, covariance: Float64Arra
     solveLower(factor, p, z);
     whitened.push(z);
   }
+  return distancesBetween(whitened, K, p);
+}
+
+/** Euclidean distances between K whitened centroids of length p, K × K. */
+function distancesBetween(whitened: Float64Array[], K: number, p: number): number[][] {
   const distances = Array.from({ length: K }, () => new Array<number>(K).fill(0));
   for (let i = 0; i < K; i++) {
     for (let k = i + 1; k < K; k++) {

@@ -15,4 +15,4 @@ export { hotellingLawley, multivariateTestIssue, pillai, roy, wilks, type Multiv
 export { bartlettSequential, type SequentialTest } from './bartlett';
 export { boxM, type BoxMClass, type BoxMResult, type BoxMSkipped } from './boxM';
 export { univariateAnova, type UnivariateTest } from './anova';
-export { centroidMahalanobis } from './distances';
+export { centroidMahalanobis, centroidMahalanobisWhitened } from './distances';

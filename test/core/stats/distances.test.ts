@@ -1,5 +1,6 @@
 import * as assert from 'node:assert/strict';
-import { centroidMahalanobis } from '../../../src/core/stats/distances';
+import { cholesky } from '../../../src/core/linalg';
+import { centroidMahalanobis, centroidMahalanobisWhitened } from '../../../src/core/stats/distances';
 import reference from '../../fixtures/stats/python-reference.json';
 import { normalFrom, relativeClose, seededRandom } from './seededRandom';
 
@@ -23,6 +24,21 @@ describe('stats/distances', () => {
           if (i === j) continue;
           assert.ok(relativeClose(ours[i][j], set.mahalanobis.matrix[i][j], 1e-10), `${i},${j}: ${ours[i][j]} vs ${set.mahalanobis.matrix[i][j]}`);
         }
+      }
+    });
+    it(`${set.name}: from a whitening of S_W in a permuted order, the same scipy distances`, () => {
+      const { p, K, n } = set;
+      const within = pooledCovariance(set.scatters, 1 + K, K, p); // divisor 1: S_W itself
+      const order = Int32Array.from({ length: p }, (_, q) => (q * 3 + 1) % p);
+      const scale = Float64Array.from(order, (f) => Math.sqrt(within[f * p + f]));
+      const correlation = new Float64Array(p * p);
+      for (let a = 0; a < p; a++) for (let b = 0; b < p; b++) correlation[a * p + b] = within[order[a] * p + order[b]] / (scale[a] * scale[b]);
+      const { factor, positiveDefinite } = cholesky(correlation, p);
+      assert.ok(positiveDefinite);
+      const ours = centroidMahalanobisWhitened(Float64Array.from(set.means), K, { order, factor, scale }, n - K);
+      for (let i = 0; i < K; i++) {
+        assert.equal(ours[i][i], 0);
+        for (let j = 0; j < K; j++) if (i !== j) assert.ok(relativeClose(ours[i][j], set.mahalanobis.matrix[i][j], 1e-10), `${i},${j}: ${ours[i][j]}`);
       }
     });
   }
