@@ -2,21 +2,27 @@
  * Speed of the fit from moments (not a unit test): per-class moments for d = 1000 features and
  * K = 10 classes (2 000 rows each) are generated directly from a known within/between structure,
  * then, in the same run,
- *   ours       solveLda (auto → exact here, and shrinkage), solvePca (covariance)
+ *   ours       solveLda (auto → exact here, and shrinkage), solvePca (covariance), and fitMoments
+ *              (everything a report takes from the moments: LDA, PCA, the tests with Box's M, …)
  *   ml-matrix  the generic dense route: S_W^{-1/2} from a full d × d eigendecomposition of S_W,
  *              then the eigenvalues of S_W^{-1/2} S_B S_W^{-1/2} (ml-matrix's general classes)
  * and prints the times, the ratio and the largest relative difference of the eigenvalues.
  *
  *   node esbuild.mjs && node out/bench/fitFromMoments.js            (d = 1000)
  *   node esbuild.mjs && node out/bench/fitFromMoments.js --quick    (d = 300, for CI)
+ *   node esbuild.mjs && node out/bench/fitFromMoments.js --no-dense (ours only)
  */
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { solveLda, type LdaOptions } from '../src/core/lda';
 import type { ClassMoments, Moments } from '../src/core/moments';
 import { betweenScatter, withinScatter } from '../src/core/moments';
 import { solvePca } from '../src/core/pca';
+import { fitMoments } from '../src/core/pipeline/fitMoments';
+import { resolveOptions } from '../src/core/pipeline/options';
 
 const quick = process.argv.includes('--quick');
+/** --no-dense: our solvers only (the ml-matrix route takes half a minute at d = 1000). */
+const dense = !process.argv.includes('--no-dense');
 const d = quick ? 300 : 1000;
 const K = 10;
 const ROWS_PER_CLASS = 2000;
@@ -111,24 +117,28 @@ const ldaRuns = [0, 1, 2].map(() => time(() => solveLda(moments, auto)));
 const solution = ldaRuns[0].value;
 const shrinkRuns = [0, 1, 2].map(() => time(() => solveLda(moments, shrinkage)));
 const pcaRuns = [0, 1, 2].map(() => time(() => solvePca(moments, 'covariance')));
+const fitOptions = resolveOptions({});
+const fitRuns = [0, 1, 2].map(() => time(() => fitMoments(moments, fitOptions)));
 const ours = median(ldaRuns.map((r) => r.ms));
-
-const sw = withinScatter(moments);
-const sb = betweenScatter(moments);
-const dense = time(() => denseEigenvalues(sw, sb));
-const k = solution.eigenvalues.length;
-let agreement = 0;
-for (let j = 0; j < k; j++) agreement = Math.max(agreement, Math.abs(solution.eigenvalues[j] - dense.value[j]) / dense.value[0]);
 
 const row = (name: string, runs: { ms: number; cpuMs: number }[], note = ''): string =>
   `${name.padEnd(34)} first ${runs[0].ms.toFixed(0).padStart(6)} ms   median ${median(runs.map((r) => r.ms)).toFixed(0).padStart(6)} ms (cpu ${median(runs.map((r) => r.cpuMs)).toFixed(0).padStart(6)} ms)${note}`;
-console.log(row(`solveLda (auto → ${solution.solver})`, ldaRuns, `   k = ${k}, cond = ${solution.conditionNumber.toPrecision(3)}`));
+console.log(row(`solveLda (auto → ${solution.solver})`, ldaRuns, `   k = ${solution.eigenvalues.length}, cond = ${solution.conditionNumber.toPrecision(3)}`));
 console.log(row('solveLda (shrinkage)', shrinkRuns, `   α = ${shrinkRuns[0].value.shrinkage.toPrecision(3)}`));
 console.log(row('solvePca (covariance)', pcaRuns, `   PC1 ratio = ${pcaRuns[0].value.explainedRatio[0].toPrecision(3)}`));
-console.log(`${'ml-matrix dense generalized eigen'.padEnd(34)} ${dense.ms.toFixed(0).padStart(12)} ms${' '.repeat(25)}(cpu ${dense.cpuMs.toFixed(0).padStart(6)} ms)`);
-const oursCpu = median(ldaRuns.map((r) => r.cpuMs));
-console.log(`ratio ml-matrix / solveLda: ${(dense.ms / ours).toFixed(1)}× wall, ${(dense.cpuMs / oursCpu).toFixed(1)}× cpu`);
-// The features have mixed units (10^-2 … 10^2): the dense route eigendecomposes S_W in those units,
-// so its small eigenvalues carry absolute errors of eps·λ_max and it agrees with ours only to about
-// 1e-8 here, while ours matched scipy.linalg.eigh to ~1e-14 when this benchmark was written.
-console.log(`largest eigenvalue difference between the two routes, relative to λ1: ${agreement.toExponential(2)}`);
+console.log(row('fitMoments (whole fit from moments)', fitRuns, `   solver ${fitRuns[0].value.solution.solver}`));
+if (dense) {
+  const sw = withinScatter(moments);
+  const sb = betweenScatter(moments);
+  const route = time(() => denseEigenvalues(sw, sb));
+  const k = solution.eigenvalues.length;
+  let agreement = 0;
+  for (let j = 0; j < k; j++) agreement = Math.max(agreement, Math.abs(solution.eigenvalues[j] - route.value[j]) / route.value[0]);
+  console.log(`${'ml-matrix dense generalized eigen'.padEnd(34)} ${route.ms.toFixed(0).padStart(12)} ms${' '.repeat(25)}(cpu ${route.cpuMs.toFixed(0).padStart(6)} ms)`);
+  const oursCpu = median(ldaRuns.map((r) => r.cpuMs));
+  console.log(`ratio ml-matrix / solveLda: ${(route.ms / ours).toFixed(1)}× wall, ${(route.cpuMs / oursCpu).toFixed(1)}× cpu`);
+  // The features have mixed units (10^-2 … 10^2): the dense route eigendecomposes S_W in those units,
+  // so its small eigenvalues carry absolute errors of eps·λ_max and it agrees with ours only to about
+  // 1e-8 here, while ours matched scipy.linalg.eigh to ~1e-14 when this benchmark was written.
+  console.log(`largest eigenvalue difference between the two routes, relative to λ1: ${agreement.toExponential(2)}`);
+}

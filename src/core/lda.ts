@@ -191,7 +191,8 @@ export function solvePooled(p: PooledMoments, options: LdaOptions): LdaSolution 
     return emptySolution(p, labels, counts, priors, n, removed, warnings, options);
   }
 
-  const rawActive = principalSubmatrix(p.withinScatter, d, active);
+  // Read only below, so the pooled scatter itself serves when every feature is active.
+  const rawActive = r === d ? p.withinScatter : principalSubmatrix(p.withinScatter, d, active);
   const tolerance = EPSILON * Math.max(n, r);
   const exact = revealRank(rawActive, r, active, tolerance);
   const exactRank = exact.order.length;
