@@ -3,8 +3,10 @@
  * scans ranges itself, beside `workers − 1` worker threads (each opens the file read-only for
  * itself): the caller would otherwise only wait, and a thread fewer is some 50 MB less memory.
  * Pass the scanner to analyze() as `scanner`; close it when the analysis is done. The threads
- * start at the first pass that uses them and serve every pass of the analysis; a cancellation or
- * an error stops them (the next pass starts new ones).
+ * serve every pass of the analysis; they start with the scanner for a CSV or TSV file large enough
+ * to be split (starting a thread takes a good part of a second on a busy machine, spent while the
+ * file is inspected), else at the first pass that uses them. A cancellation or an error stops
+ * them, and so does `release` once the rows are read (a later pass starts new ones).
  *
  * Scanning threads: the machine's available parallelism (os.availableParallelism), at most 8.
  */
@@ -13,6 +15,7 @@ import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { CancelledError, DataError } from '../core/errors';
+import { formatFromName } from '../core/read/format';
 import { progressPassOf } from '../core/parallel/inProcessScanner';
 import { openPassJob } from '../core/parallel/passJobs';
 import type { RangeScanner } from '../core/parallel/rangeScanner';
@@ -32,6 +35,12 @@ export interface ParallelScanOptions {
 }
 
 export const DEFAULT_MINIMUM_BYTES = 32 * 1024 * 1024;
+
+/**
+ * A worker's young generation: its passes allocate little (typed arrays reused across batches), and
+ * V8's default lets the semi-spaces grow to 16 MiB each, memory the process holds to its end.
+ */
+const WORKER_LIMITS = { maxYoungGenerationSizeMb: 4 };
 
 /** Ranges handed to a worker thread ahead: it starts the next as soon as it ends one, even while the calling thread is busy scanning. */
 const AHEAD = 2;
@@ -60,10 +69,13 @@ export function createParallelScanner(path: string, name: string, options: Paral
   const ensurePool = (): Worker[] => {
     while (pool.length < workers - 1) {
       const data: ScanWorkerData = { path, name };
-      pool.push(new Worker(script, { workerData: data }));
+      pool.push(new Worker(script, { workerData: data, resourceLimits: WORKER_LIMITS }));
     }
     return pool;
   };
+  const minimumBytes = options.minimumBytes ?? DEFAULT_MINIMUM_BYTES;
+  const format = formatFromName(name) ?? formatFromName(path);
+  if (workers > 1 && size >= minimumBytes && (format === 'csv' || format === 'tsv')) ensurePool();
 
   let localNamed: Promise<ByteSource> | null = null;
   const localSource = (): Promise<ByteSource> => {
@@ -75,7 +87,7 @@ export function createParallelScanner(path: string, name: string, options: Paral
 
   return {
     workers,
-    minimumBytes: options.minimumBytes ?? DEFAULT_MINIMUM_BYTES,
+    minimumBytes,
     ...(options.rangeBytes !== undefined ? { rangeBytes: options.rangeBytes } : {}),
 
     run(job, count, task, onPart, control) {
@@ -199,6 +211,8 @@ export function createParallelScanner(path: string, name: string, options: Paral
         })().catch((error: unknown) => settle(error as Error));
       });
     },
+
+    release: stopAll,
 
     async close(): Promise<void> {
       await stopAll();

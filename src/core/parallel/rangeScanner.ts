@@ -127,7 +127,7 @@ export interface RangeScanner {
   readonly workers: number;
   /** Sources smaller than this are read by one thread: starting workers would not pay. */
   readonly minimumBytes: number;
-  /** Bytes per range; default about 8 ranges per worker, within 4–64 MiB (small values are for tests). */
+  /** Bytes per range (small values are for tests); default: shrinking ranges, 64 MiB down to 2 MiB (rowPasses.ts). */
   readonly rangeBytes?: number;
   /**
    * Runs `job` over ranges 0..count−1: a free worker takes the next range index, `task(index)`
@@ -137,4 +137,9 @@ export interface RangeScanner {
    * rejects with a DataError. Resolves with each worker's result.
    */
   run(job: PassJob, count: number, task: (index: number) => RangeTask, onPart: (index: number, part: unknown) => void, control?: RunControl): Promise<unknown[]>;
+  /**
+   * The analysis needs no more passes: the scanner may free its threads now, before the report is
+   * built (their memory would otherwise add to the peak). A later run starts them again.
+   */
+  release?(): Promise<void>;
 }

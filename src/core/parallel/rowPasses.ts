@@ -46,7 +46,14 @@ export class ParallelFallback extends Error {
 
 /** Ranges per worker: enough for the fast workers to take over from a slow one. */
 const RANGES_PER_WORKER = 8;
-const MIN_RANGE_BYTES = 4 * 1024 * 1024;
+/**
+ * Text ranges shrink as the split goes on (guided self-scheduling, Polychronopoulos & Kuck 1987):
+ * each is the rest of the file over GUIDED_SHARES · workers, within MIN–MAX_RANGE_BYTES. Large
+ * ranges first keep the per-range costs low; small ones last let the threads finish together
+ * (a thread that takes the last 64 MiB range alone leaves the others idle for a second).
+ */
+const GUIDED_SHARES = 4;
+const MIN_RANGE_BYTES = 2 * 1024 * 1024;
 const MAX_RANGE_BYTES = 64 * 1024 * 1024;
 
 /** Whether a parallel scan of this source can give the single-thread result (Parquet: see splitSource). */
@@ -81,14 +88,29 @@ async function splitSource(source: ByteSource, inspection: TableInspection, scan
   return shares.length < 2 ? null : shares;
 }
 
-/** The source split at row starts into about size / rangeBytes ranges (empty ones dropped). */
+/**
+ * The source split at row starts (empty ranges dropped): into about size / preferredBytes equal
+ * ranges when the caller names a size (tests), else in shrinking ranges (GUIDED_SHARES above).
+ */
 export async function splitAtRowStarts(source: ByteSource, workers: number, preferredBytes?: number): Promise<ByteRange[]> {
   const size = source.size;
-  const rangeBytes = preferredBytes ?? Math.min(MAX_RANGE_BYTES, Math.max(MIN_RANGE_BYTES, Math.ceil(size / (workers * RANGES_PER_WORKER))));
-  const count = Math.max(1, Math.round(size / rangeBytes));
+  const cuts: number[] = [];
+  if (preferredBytes !== undefined) {
+    const count = Math.max(1, Math.round(size / preferredBytes));
+    for (let i = 1; i < count; i++) cuts.push(Math.floor((i * size) / count));
+  } else {
+    for (let at = 0; ; ) {
+      const rest = size - at;
+      const length = Math.min(MAX_RANGE_BYTES, Math.max(MIN_RANGE_BYTES, Math.ceil(rest / (GUIDED_SHARES * Math.max(1, workers)))));
+      // A last piece smaller than the minimum joins the range before it.
+      if (rest - length < MIN_RANGE_BYTES) break;
+      at += length;
+      cuts.push(at);
+    }
+  }
   const bounds = [0];
-  for (let i = 1; i < count; i++) {
-    const at = await alignToRowStart(source, Math.floor((i * size) / count));
+  for (const cut of cuts) {
+    const at = await alignToRowStart(source, cut);
     if (at > bounds[bounds.length - 1]! && at < size) bounds.push(at);
   }
   bounds.push(size);
@@ -165,11 +187,15 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
       return runFirst(source, inspection, plan, control, shares);
     },
 
+    // Pass 2 is the analysis's last pass over the rows: the threads are released as soon as it
+    // no longer needs them, before the parts are joined and the report built (which allocate most).
     async second(input, control) {
       const layout = last?.features === key(input.features) ? last.layout : null;
-      if (!layout || input.rowLimit !== null || input.range || input.rows) return secondPass(input, control);
-      const crossValidation = crossValidationModel(input);
-      if (!crossValidation) return secondPass(input, control);
+      const crossValidation = layout && input.rowLimit === null && !input.range && !input.rows ? crossValidationModel(input) : null;
+      if (!layout || !crossValidation) {
+        await scanner.release?.();
+        return secondPass(input, control);
+      }
       const classRowsBefore = (index: number): number[] => input.solution.labels.map((label) => layout.usedBefore[index]!.get(label) ?? 0);
       const foldRowsBefore = (index: number): number[] => layout.appearance.map((label) => layout.usedBefore[index]!.get(label) ?? 0);
       const parts: SecondRangePart[] = new Array(layout.ranges.length);
@@ -212,6 +238,7 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
           control,
         )
         .catch(fallbackOn);
+      await scanner.release?.();
       return mergeSecondParts(parts, input.misclassifiedLimit);
     },
   };
