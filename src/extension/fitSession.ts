@@ -24,7 +24,10 @@ import { ProgressNotification } from './progressNotification';
 import { projectSettingsFor } from './projectConfig';
 import type { FileStamp, ResultCache } from './resultCache';
 import { readSettings } from './settings';
-import type { FitFailure } from './workerProtocol';
+import type { FitFailure, WorkerTiming } from './workerProtocol';
+
+/** Epoch milliseconds with sub-millisecond resolution, comparable with the worker's (WorkerTiming). */
+const clock = (): number => performance.timeOrigin + performance.now();
 
 export interface SessionServices {
   workers: FitWorkers;
@@ -187,7 +190,7 @@ export class FitSession implements vscode.Disposable {
       return;
     }
     this.progress('starting', 0);
-    const started = Date.now();
+    const started = clock();
     const job = this.services.workers.start(
       { path, options, provisionalBytes: this.services.provisionalBytes },
       {
@@ -201,10 +204,14 @@ export class FitSession implements vscode.Disposable {
           this.services.output.info(`${this.fileName}: same content as a file analysed before; answered from the cache.`);
           this.finish(known.report, known.columns);
         },
-        result: (report, columns) => {
+        result: (report, columns, timing) => {
+          const received = clock();
           if (report.provisional) {
             this.latest.provisional = this.resultMessage(report, columns);
             this.broadcast(this.latest.provisional);
+            this.services.output.info(
+              `${this.fileName}: first look from ${report.rows.total} rows; ${this.timeline(started, received, timing)}; posted to the panel in ${Math.round(clock() - received)} ms.`,
+            );
             return;
           }
           if (report.source.sha256) {
@@ -213,10 +220,11 @@ export class FitSession implements vscode.Disposable {
           }
           this.services.output.info(
             `${this.fileName}: ${report.rows.used} of ${report.rows.total} rows, ${report.classes.length} classes, ` +
-              `${report.features.length} features, ${report.findings.length} findings, ${Date.now() - started} ms.`,
+              `${report.features.length} features, ${report.findings.length} findings; ${this.timeline(started, received, timing)}.`,
           );
           this.settled(job);
           this.finish(report, columns);
+          this.services.output.info(`${this.fileName}: full answer posted ${Math.round(clock() - received)} ms after it arrived from the worker.`);
         },
         failed: (failure, columns) => {
           this.settled(job);
@@ -229,6 +237,16 @@ export class FitSession implements vscode.Disposable {
     this.notification = new ProgressNotification(`Scatterwise: analysing ${this.fileName}`, job.ended, this.services.notificationDelay, () => {
       if (this.job === job) this.cancel('user');
     });
+  }
+
+  /** Where the milliseconds from starting a worker to a result in hand went, for the output channel. */
+  private timeline(started: number, received: number, timing: WorkerTiming | undefined): string {
+    const ms = (from: number, to: number): string => `${Math.round(to - from)} ms`;
+    if (!timing) return `${ms(started, received)} after the worker was started`;
+    return (
+      `worker running after ${ms(started, timing.started)}, analysing from ${ms(started, timing.analysisStarted)} for ${ms(timing.analysisStarted, timing.analysisEnded)}, ` +
+      `in the host ${ms(timing.analysisEnded, received)} later, ${ms(started, received)} in all`
+    );
   }
 
   /** The job has its answer (or ended): closing the editor now has nothing to stop. */

@@ -5,13 +5,13 @@
 import { Worker } from 'node:worker_threads';
 import type { FitReport } from '../core/types';
 import type { ColumnChoice } from '../shared/messages';
-import type { FitFailure, FitRequest, FromWorker } from './workerProtocol';
+import type { FitFailure, FitRequest, FromWorker, WorkerTiming } from './workerProtocol';
 
 export interface FitJobListener {
   progress(phase: string, fraction: number): void;
   hashed(sha256: string): void;
   /** Called for a provisional report (report.provisional) and for the final one. */
-  result(report: FitReport, columns: ColumnChoice[]): void;
+  result(report: FitReport, columns: ColumnChoice[], timing?: WorkerTiming): void;
   failed(failure: FitFailure, columns?: ColumnChoice[]): void;
 }
 
@@ -59,10 +59,10 @@ export class FitWorkers {
           break;
         case 'result':
           if (!message.report.provisional && settle()) {
-            listener.result(message.report, message.columns);
+            listener.result(message.report, message.columns, message.timing);
             void worker.terminate();
           } else if (message.report.provisional) {
-            listener.result(message.report, message.columns);
+            listener.result(message.report, message.columns, message.timing);
           }
           break;
         case 'failed':

@@ -7,6 +7,7 @@
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
 import { availableParallelism } from 'node:os';
+import { performance } from 'node:perf_hooks';
 import { parentPort, workerData } from 'node:worker_threads';
 import { analyze } from '../core/analyze';
 import { DataError } from '../core/errors';
@@ -18,6 +19,10 @@ import { openFileSource } from '../node/fileSource';
 import { createParallelScanner } from '../node/parallelScan';
 import type { ColumnChoice } from '../shared/messages';
 import type { FitFailure, FitRequest, FromWorker } from './workerProtocol';
+
+/** Epoch milliseconds, comparable with the host's (see WorkerTiming). */
+const clock = (): number => performance.timeOrigin + performance.now();
+const started = clock();
 
 const port = parentPort;
 if (!port) throw new Error('worker.ts runs only as a worker thread');
@@ -89,11 +94,12 @@ async function run(request: FitRequest): Promise<void> {
     if (source.size > request.provisionalBytes) {
       try {
         const quickOptions = { ...request.options, plotBudget: Math.min(request.options.plotBudget ?? DEFAULT_FIT_OPTIONS.plotBudget, PROVISIONAL_PLOT_BUDGET) };
+        const analysisStarted = clock();
         const quick = await analyze(source, quickOptions, {
           provisionalBytes: request.provisionalBytes,
           onProgress: progressPoster('first look'),
         });
-        post({ type: 'result', report: quick.report, columns: columnChoices(quick.inspection) });
+        post({ type: 'result', report: quick.report, columns: columnChoices(quick.inspection), timing: { started, analysisStarted, analysisEnded: clock() } });
       } catch (error) {
         // The first bytes may hold one class only, or end inside a row: the full pass decides.
         if (!(error instanceof DataError)) throw error;
@@ -101,13 +107,15 @@ async function run(request: FitRequest): Promise<void> {
     }
     const scanner = bytes ? undefined : parallelScanner(request);
     let full;
+    const analysisStarted = clock();
     try {
       full = await analyze(source, request.options, { onProgress: progressPoster('analysis'), ...(scanner ? { scanner } : {}) });
     } finally {
       await scanner?.close();
     }
+    const analysisEnded = clock();
     full.report.source.sha256 = await hashing;
-    post({ type: 'result', report: full.report, columns: columnChoices(full.inspection) });
+    post({ type: 'result', report: full.report, columns: columnChoices(full.inspection), timing: { started, analysisStarted, analysisEnded } });
   } catch (error) {
     post({ type: 'failed', failure: toFailure(error), columns: await columnsIfReadable(source, request) });
   } finally {

@@ -29,8 +29,20 @@ export interface FitFailure {
   stack?: string;
 }
 
+/**
+ * When the worker's steps happened, as epoch milliseconds (`performance.timeOrigin + performance.now()`,
+ * comparable across threads): the host writes where the time went to its output channel.
+ */
+export interface WorkerTiming {
+  /** The worker's script began to run (its bundle loaded). */
+  started: number;
+  /** The analysis behind this result began and ended. */
+  analysisStarted: number;
+  analysisEnded: number;
+}
+
 export type FromWorker =
   | { type: 'progress'; phase: string; fraction: number }
   | { type: 'hashed'; sha256: string }
-  | { type: 'result'; report: FitReport; columns: ColumnChoice[] }
+  | { type: 'result'; report: FitReport; columns: ColumnChoice[]; timing?: WorkerTiming }
   | { type: 'failed'; failure: FitFailure; columns?: ColumnChoice[] };
