@@ -1,14 +1,15 @@
 /**
- * 2-norm condition number λ_max/λ_min of a symmetric positive definite matrix whose Cholesky
- * factor is at hand. Small matrices (m ≤ 64) get all eigenvalues (symmetricEigenvalues). Larger
- * ones get the two extreme eigenvalues by the Lanczos method with full re-orthogonalisation
- * (Golub & Van Loan, Matrix Computations, 4th ed., §10.1 and §10.3.1): λ_max from A, λ_min as
- * 1/λ_max of A⁻¹ applied through the factor. Extreme Ritz values converge first and fast, so a
+ * 2-norm condition number λ_max/λ_min of a symmetric positive definite matrix A = L Lᵀ, from its
+ * Cholesky factor alone (any symmetric permutation of A has the same eigenvalues, so a pivoted
+ * factor serves as it is). Small matrices (m ≤ 64) get all eigenvalues of L Lᵀ
+ * (symmetricEigenvalues). Larger ones get the two extreme eigenvalues by the Lanczos method with
+ * full re-orthogonalisation (Golub & Van Loan, Matrix Computations, 4th ed., §10.1 and §10.3.1):
+ * λ_max of L Lᵀ applied as two triangular products, λ_min as 1/λ_max of L⁻ᵀ L⁻¹. Extreme Ritz values converge first and fast, so a
  * few dozen products of cost O(m²) replace the O(m³) reduction; iteration stops when the largest
  * Ritz value changes by less than 1e-12 relative over three steps (or the Krylov space is
  * exhausted, where the value is exact). Deterministic: the start vector comes from a fixed seed.
  */
-import { multiply, solveLower, solveLowerTranspose, symmetricEigenvalues, tridiagonalEigenvalues } from './linalg';
+import { solveLower, solveLowerTranspose, symmetricEigenvalues, tridiagonalEigenvalues } from './linalg';
 
 const DIRECT_LIMIT = 64;
 
@@ -72,20 +73,46 @@ function largestTridiagonalEigenvalue(alpha: number[], beta: number[]): number {
   return tridiagonalEigenvalues(alpha, [0, ...beta])[0];
 }
 
+/** out = L Lᵀ x for the m × m lower-triangular L (row-major); `scratch` holds Lᵀ x. */
+function applyGram(factor: Float64Array, m: number, x: Float64Array, out: Float64Array, scratch: Float64Array): void {
+  scratch.fill(0);
+  for (let i = 0; i < m; i++) {
+    const row = i * m;
+    const xi = x[i];
+    for (let k = 0; k <= i; k++) scratch[k] += factor[row + k] * xi;
+  }
+  for (let i = 0; i < m; i++) {
+    const row = i * m;
+    let s = 0;
+    for (let k = 0; k <= i; k++) s += factor[row + k] * scratch[k];
+    out[i] = s;
+  }
+}
+
 /**
- * Condition number of the m × m SPD matrix `a` with Cholesky factor `factor` (a = L Lᵀ), capped
- * at 1/eps so it is never Infinity or NaN; 1 for the empty matrix.
+ * Condition number of the m × m SPD matrix L Lᵀ given its Cholesky factor L, capped at 1/eps so
+ * it is never Infinity or NaN; 1 for the empty matrix.
  */
-export function conditionNumber(a: Float64Array, factor: Float64Array, m: number): number {
+export function conditionNumber(factor: Float64Array, m: number): number {
   if (m === 0) return 1;
   let largest: number;
   let smallest: number;
   if (m <= DIRECT_LIMIT) {
+    const a = new Float64Array(m * m);
+    for (let i = 0; i < m; i++) {
+      for (let j = 0; j <= i; j++) {
+        let s = 0;
+        for (let k = 0; k <= j; k++) s += factor[i * m + k] * factor[j * m + k];
+        a[i * m + j] = s;
+        a[j * m + i] = s;
+      }
+    }
     const values = symmetricEigenvalues(a, m);
     largest = values[0];
     smallest = values[m - 1];
   } else {
-    largest = largestEigenvalue((x, out) => multiply(a, m, m, x, out), m);
+    const scratch = new Float64Array(m);
+    largest = largestEigenvalue((x, out) => applyGram(factor, m, x, out, scratch), m);
     const inverseLargest = largestEigenvalue((x, out) => {
       out.set(x);
       solveLower(factor, m, out);

@@ -122,7 +122,7 @@ function checkOptions(options: LdaOptions): void {
 
 /** 2-norm condition number of the kept correlation matrix, capped at 1/eps (never Infinity or NaN). */
 function conditionNumberOf(revealed: RankRevealed): number {
-  return conditionNumber(revealed.correlation, revealed.factor, revealed.order.length);
+  return conditionNumber(revealed.factor, revealed.order.length);
 }
 
 function names(indices: number[], features: string[]): string {

@@ -13,7 +13,7 @@
  * Zero variance is judged against the rounding level of the values themselves: a column whose
  * sum of squared deviations is at most n·(4·eps·max|x|)² cannot be told from a constant one.
  */
-import { EPSILON, orderedCholesky, pivotedCholesky, principalSubmatrix, solveLower, solveLowerTranspose } from './linalg';
+import { EPSILON, orderedCholesky, pivotedCholeskyInPlace, solveLower, solveLowerTranspose } from './linalg';
 
 /** What a removal needs to know about the data, all over the full feature set (d). */
 export interface ColumnFacts {
@@ -70,8 +70,6 @@ export interface Whitening {
 }
 
 export interface RankRevealed extends Whitening {
-  /** Correlation matrix of the kept columns, ρ × ρ, pivot order. */
-  correlation: Float64Array;
   /** Columns found dependent on the kept ones: regression on them (correlation scale), √diag. */
   dependents: DependentLoadings[];
 }
@@ -97,25 +95,35 @@ export interface DependentLoadings {
 export function revealRank(a: Float64Array, m: number, columns: number[], tolerance: number): RankRevealed {
   const root = new Float64Array(m);
   for (let i = 0; i < m; i++) root[i] = Math.sqrt(a[i * m + i]);
-  const correlation = new Float64Array(m * m);
-  for (let i = 0; i < m; i++) {
-    for (let j = 0; j < m; j++) correlation[i * m + j] = i === j ? 1 : a[i * m + j] / (root[i] * root[j]);
-  }
-  const pivoted = pivotedCholesky(correlation, m, tolerance);
+  const correlationOf = (lowerOnly: boolean): Float64Array => {
+    const c = new Float64Array(m * m);
+    for (let i = 0; i < m; i++) {
+      const row = i * m;
+      const last = lowerOnly ? i : m - 1;
+      const ri = root[i];
+      for (let j = 0; j <= last; j++) c[row + j] = i === j ? 1 : a[row + j] / (ri * root[j]);
+    }
+    return c;
+  };
+  // The factorization overwrites the correlation's lower triangle in place: with full rank (the
+  // common case) that triangle is all that is ever read, and the factor is used as it is.
+  const pivoted = pivotedCholeskyInPlace(correlationOf(true), m, tolerance);
   const rank = pivoted.rank;
+  if (rank === m) {
+    return { order: Array.from(pivoted.pivots, (q) => columns[q]), factor: pivoted.factor, scale: Float64Array.from(pivoted.pivots, (q) => root[q]), dependents: [] };
+  }
+  const correlation = correlationOf(false);
   let keptPositions: number[];
   let factor: Float64Array;
-  const ordered = rank < m ? orderedCholesky(correlation, m, tolerance) : null;
-  if (ordered === null || ordered.kept.length === rank) {
-    keptPositions = ordered ? Array.from(ordered.kept) : Array.from(pivoted.pivots.subarray(0, rank));
-    factor = ordered ? ordered.factor : new Float64Array(rank * rank);
-    if (!ordered) for (let i = 0; i < rank; i++) for (let j = 0; j <= i; j++) factor[i * rank + j] = pivoted.factor[i * m + j];
+  const ordered = orderedCholesky(correlation, m, tolerance);
+  if (ordered.kept.length === rank) {
+    keptPositions = Array.from(ordered.kept);
+    factor = ordered.factor;
   } else {
     keptPositions = Array.from(pivoted.pivots.subarray(0, rank));
     factor = new Float64Array(rank * rank);
     for (let i = 0; i < rank; i++) for (let j = 0; j <= i; j++) factor[i * rank + j] = pivoted.factor[i * m + j];
   }
-  const keptCorrelation = principalSubmatrix(correlation, m, keptPositions);
   const isKept = new Uint8Array(m);
   for (const q of keptPositions) isKept[q] = 1;
   const dependents: DependentLoadings[] = [];
@@ -130,7 +138,6 @@ export function revealRank(a: Float64Array, m: number, columns: number[], tolera
     order: keptPositions.map((q) => columns[q]),
     factor,
     scale: Float64Array.from(keptPositions, (q) => root[q]),
-    correlation: keptCorrelation,
     dependents,
   };
 }

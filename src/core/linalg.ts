@@ -88,6 +88,19 @@ export function pivotedCholesky(a: Float64Array, n: number, tolerance: number): 
   return { rank, pivots, factor: l, residual };
 }
 
+/**
+ * pivotedCholesky on `a` itself: its lower triangle is overwritten by the factor (the strict upper
+ * triangle must be zero, and is left so), saving the copy where the caller has no further use for A.
+ */
+export function pivotedCholeskyInPlace(a: Float64Array, n: number, tolerance: number): PivotedCholeskyResult {
+  const pivots = new Int32Array(n);
+  for (let i = 0; i < n; i++) pivots[i] = i;
+  const residual = new Float64Array(n);
+  const { rank } = factorInPlace(a, n, tolerance, true, pivots, residual);
+  clearBeyond(a, n, rank);
+  return { rank, pivots, factor: a, residual };
+}
+
 /** Columns of a panel: the trailing update is a rank-PANEL product over rows held contiguously. */
 const PANEL = 32;
 
