@@ -152,6 +152,115 @@ function moduleBytes(strideBytes: number): Uint8Array {
   return Uint8Array.from([0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, ...type, ...imports, ...functions, ...exports, ...code]);
 }
 
+// ---- the row-major kernel: S tiles held in registers, block rows broadcast -----------------------
+
+const F64 = 0x7c;
+const geU = [0x4f];
+const f64Mul = [0xa2];
+const v128Store = (offset: number): number[] => [0xfd, 0x0b, 3, ...unsignedLeb(offset)];
+const v128Splat64 = (offset: number): number[] => [0xfd, 0x0a, 3, ...unsignedLeb(offset)];
+const f64x2Splat = [0xfd, 0x14];
+
+/** Side of the S tile held in registers by the row-major kernel (4 rows × 4 columns). */
+export const TILE = 4;
+
+// update(s, x, rows): parameters S byte offset, block byte offset, rows.
+const [RS, RX, RROWS] = [0, 1, 2];
+// Locals: i32 i0, j0, pi, pj, piEnd, ps, size in bytes of the rows used; v128 acc[k][c] (8), b0, b1, a.
+const [RI, RJ, RPI, RPJ, RPI_END, RPS, RSPAN] = [3, 4, 5, 6, 7, 8, 9];
+const RACC = 10; // acc[k][c] at RACC + 2k + c
+const [RB0, RB1, RA] = [18, 19, 20];
+
+/**
+ * S += Xᵀ X for a row-major block X (`rows` rows of `size` doubles, size a multiple of 4), S
+ * size × size: for each 4 × 4 tile on or right of the diagonal, the tile is loaded into eight
+ * two-lane registers, every block row adds x[i..i+3] (each broadcast) times x[j..j+3] (two
+ * vectors), and the tile is stored back: per block row two vector loads and four broadcast loads
+ * feed eight multiply-adds, and S is read and written once per tile and block.
+ */
+function rowUpdateBody(size: number): number[] {
+  const rowBytes = size * 8;
+  const code: number[] = [];
+  code.push(...get(RROWS), ...i32(rowBytes), ...mul, ...set(RSPAN));
+  code.push(...i32(0), ...set(RI));
+  code.push(...block, ...loop, ...get(RI), ...i32(size), ...geS, ...brIf(1));
+  code.push(...get(RI), ...set(RJ));
+  code.push(...block, ...loop, ...get(RJ), ...i32(size), ...geS, ...brIf(1));
+  // ps = s + (i0·size + j0)·8; load the tile.
+  code.push(...get(RI), ...i32(size), ...mul, ...get(RJ), ...add, ...i32(8), ...mul, ...get(RS), ...add, ...set(RPS));
+  for (let k = 0; k < TILE; k++) for (let c = 0; c < 2; c++) code.push(...get(RPS), ...v128Load(k * rowBytes + 16 * c), ...set(RACC + 2 * k + c));
+  code.push(...get(RI), ...i32(8), ...mul, ...get(RX), ...add, ...set(RPI));
+  code.push(...get(RJ), ...i32(8), ...mul, ...get(RX), ...add, ...set(RPJ));
+  code.push(...get(RPI), ...get(RSPAN), ...add, ...set(RPI_END));
+  code.push(...block, ...loop, ...get(RPI), ...get(RPI_END), ...geU, ...brIf(1));
+  code.push(...get(RPJ), ...v128Load(0), ...set(RB0), ...get(RPJ), ...v128Load(16), ...set(RB1));
+  for (let k = 0; k < TILE; k++) {
+    code.push(...get(RPI), ...v128Splat64(8 * k), ...set(RA));
+    for (let c = 0; c < 2; c++) code.push(...get(RACC + 2 * k + c), ...get(RA), ...get(c === 0 ? RB0 : RB1), ...f64x2Mul, ...f64x2Add, ...set(RACC + 2 * k + c));
+  }
+  code.push(...get(RPI), ...i32(rowBytes), ...add, ...set(RPI), ...get(RPJ), ...i32(rowBytes), ...add, ...set(RPJ), ...br(0), ...end, ...end);
+  for (let k = 0; k < TILE; k++) for (let c = 0; c < 2; c++) code.push(...get(RPS), ...get(RACC + 2 * k + c), ...v128Store(k * rowBytes + 16 * c));
+  code.push(...get(RJ), ...i32(TILE), ...add, ...set(RJ), ...br(0), ...end, ...end);
+  code.push(...get(RI), ...i32(TILE), ...add, ...set(RI), ...br(0), ...end, ...end);
+  return code;
+}
+
+// multiplyUpper(s, v, out): out += S v, S read in its upper triangle only.
+const [MS, MV, MOUT] = [0, 1, 2];
+// Locals: i32 i, j, prow (S row i), f64 vi, sum, value; v128 vi2, acc, sv.
+const [MI, MJ, MROW] = [3, 4, 5];
+const [MVI, MSUM, MVAL] = [6, 7, 8];
+const [MVI2, MACC, MSV] = [9, 10, 11];
+
+/** out += S v over the upper triangle: row i gives Σ_{j≥i} S_ij v_j to out_i and S_ij v_i to out_j (j > i), two j at a time. */
+function multiplyUpperBody(size: number): number[] {
+  const code: number[] = [];
+  const scalarStep = [
+    // value = S[i][j]; sum += value·v[j]; out[j] += value·vi; j += 1
+    ...get(MROW), ...get(MJ), ...i32(8), ...mul, ...add, ...f64Load(0), ...set(MVAL),
+    ...get(MSUM), ...get(MVAL), ...get(MV), ...get(MJ), ...i32(8), ...mul, ...add, ...f64Load(0), ...f64Mul, ...f64Add, ...set(MSUM),
+    ...get(MOUT), ...get(MJ), ...i32(8), ...mul, ...add,
+    ...get(MOUT), ...get(MJ), ...i32(8), ...mul, ...add, ...f64Load(0), ...get(MVAL), ...get(MVI), ...f64Mul, ...f64Add, ...f64Store(0),
+    ...get(MJ), ...i32(1), ...add, ...set(MJ),
+  ];
+  code.push(...i32(0), ...set(MI));
+  code.push(...block, ...loop, ...get(MI), ...i32(size), ...geS, ...brIf(1));
+  code.push(...get(MI), ...i32(size * 8), ...mul, ...get(MS), ...add, ...set(MROW));
+  code.push(...get(MV), ...get(MI), ...i32(8), ...mul, ...add, ...f64Load(0), ...set(MVI));
+  code.push(...get(MVI), ...f64x2Splat, ...set(MVI2));
+  // The diagonal: sum = S_ii v_i.
+  code.push(...get(MROW), ...get(MI), ...i32(8), ...mul, ...add, ...f64Load(0), ...get(MVI), ...f64Mul, ...set(MSUM));
+  code.push(...get(MI), ...i32(1), ...add, ...set(MJ));
+  // size is even: one scalar step when an odd number of columns follow the diagonal.
+  code.push(...get(MI), ...i32(1), ...[0x71], ...i32(0), ...[0x46], ...when, ...scalarStep, ...end); // (i & 1) == 0
+  code.push(...v128Zero, ...set(MACC));
+  code.push(...block, ...loop, ...get(MJ), ...i32(size), ...geS, ...brIf(1));
+  code.push(...get(MROW), ...get(MJ), ...i32(8), ...mul, ...add, ...v128Load(0), ...set(MSV));
+  code.push(...get(MACC), ...get(MSV), ...get(MV), ...get(MJ), ...i32(8), ...mul, ...add, ...v128Load(0), ...f64x2Mul, ...f64x2Add, ...set(MACC));
+  code.push(...get(MOUT), ...get(MJ), ...i32(8), ...mul, ...add);
+  code.push(...get(MOUT), ...get(MJ), ...i32(8), ...mul, ...add, ...v128Load(0), ...get(MSV), ...get(MVI2), ...f64x2Mul, ...f64x2Add, ...v128Store(0));
+  code.push(...get(MJ), ...i32(2), ...add, ...set(MJ), ...br(0), ...end, ...end);
+  // out[i] += sum + both lanes of acc.
+  code.push(...get(MOUT), ...get(MI), ...i32(8), ...mul, ...add);
+  code.push(...get(MOUT), ...get(MI), ...i32(8), ...mul, ...add, ...f64Load(0), ...get(MSUM), ...get(MACC), ...lane(0), ...f64Add, ...get(MACC), ...lane(1), ...f64Add, ...f64Add, ...f64Store(0));
+  code.push(...get(MI), ...i32(1), ...add, ...set(MI), ...br(0), ...end, ...end);
+  return code;
+}
+
+function rowModuleBytes(size: number): Uint8Array {
+  const type = section(1, vector([[0x60, ...vector([[I32], [I32], [I32]]), 0]]));
+  const imports = section(2, vector([[...utf8('env'), ...utf8('memory'), 0x02, 0x00, 0x01]]));
+  const functions = section(3, vector([[0], [0]]));
+  const exports = section(7, vector([
+    [...utf8('update'), 0x00, 0],
+    [...utf8('multiplyUpper'), 0x00, 1],
+  ]));
+  const update = [...vector([[...unsignedLeb(7), I32], [...unsignedLeb(11), V128]]), ...rowUpdateBody(size), ...end];
+  const multiply = [...vector([[...unsignedLeb(3), I32], [...unsignedLeb(3), F64], [...unsignedLeb(3), V128]]), ...multiplyUpperBody(size), ...end];
+  const code = section(10, vector([[...unsignedLeb(update.length), ...update], [...unsignedLeb(multiply.length), ...multiply]]));
+  return Uint8Array.from([0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, ...type, ...imports, ...functions, ...exports, ...code]);
+}
+
 /** The part of the WebAssembly JavaScript API used here (declared by hand: the core's type-check has no DOM library). */
 interface WasmModule {
   readonly compiled: unique symbol;
@@ -252,4 +361,147 @@ export function createCrossProductKernel(d: number, stride: number, plain = fals
 /** Whether the WebAssembly SIMD kernel is in use here. */
 export function simdAvailable(): boolean {
   return simdModule(4) !== null;
+}
+
+// ---- the row-major kernel ------------------------------------------------------------------------
+
+/**
+ * S += Xᵀ X over a block of rows held row-major, for the moments (momentsAccumulator.ts):
+ *
+ *   S      size × size, row-major (size = d rounded up to a multiple of TILE); the upper
+ *          triangle (j ≥ i) is exact, entries below it are left undefined (the diagonal tiles
+ *          update a few of them)
+ *   block  capacity × size: block row t at t·size; columns d..size−1 must stay 0, so the padding
+ *          rows and columns of S stay 0
+ *   vector, product  size each: product += S·vector from S's upper triangle (multiplyUpper)
+ *
+ * All of them are views of the kernel's own memory, filled and read in place.
+ */
+export interface ScatterKernel {
+  readonly d: number;
+  readonly size: number;
+  readonly capacity: number;
+  readonly scatter: Float64Array;
+  readonly block: Float64Array;
+  readonly vector: Float64Array;
+  readonly product: Float64Array;
+  /** S += Xᵀ X over the first `rows` block rows (rows ≤ capacity). */
+  update(rows: number): void;
+  /** product = S·vector (product is overwritten), from the upper triangle. */
+  multiplyUpper(): void;
+}
+
+const rowModules = new Map<number, WasmModule | null>();
+
+function rowModule(size: number): WasmModule | null {
+  const known = rowModules.get(size);
+  if (known !== undefined) return known;
+  const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
+  let module: WasmModule | null = null;
+  try {
+    const bytes = rowModuleBytes(size);
+    if (wasm && wasm.validate(bytes)) module = new wasm.Module(bytes);
+  } catch {
+    module = null;
+  }
+  rowModules.set(size, module);
+  return module;
+}
+
+class SimdScatterKernel implements ScatterKernel {
+  readonly scatter: Float64Array;
+  readonly block: Float64Array;
+  readonly vector: Float64Array;
+  readonly product: Float64Array;
+  private readonly run: (s: number, x: number, rows: number) => void;
+  private readonly multiply: (s: number, v: number, out: number) => void;
+  private readonly offsets: { block: number; vector: number; product: number };
+
+  constructor(
+    module: WasmModule,
+    readonly d: number,
+    readonly size: number,
+    readonly capacity: number,
+  ) {
+    const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly!;
+    const block = size * size * 8;
+    const vectorAt = block + capacity * size * 8;
+    const productAt = vectorAt + size * 8;
+    const bytes = productAt + size * 8;
+    const memory = new wasm.Memory({ initial: Math.max(1, Math.ceil(bytes / PAGE)) });
+    const instance = new wasm.Instance(module, { env: { memory } });
+    this.run = instance.exports.update as (s: number, x: number, rows: number) => void;
+    this.multiply = instance.exports.multiplyUpper as (s: number, v: number, out: number) => void;
+    this.offsets = { block, vector: vectorAt, product: productAt };
+    this.scatter = new Float64Array(memory.buffer, 0, size * size);
+    this.block = new Float64Array(memory.buffer, block, capacity * size);
+    this.vector = new Float64Array(memory.buffer, vectorAt, size);
+    this.product = new Float64Array(memory.buffer, productAt, size);
+  }
+
+  update(rows: number): void {
+    if (rows > 0) this.run(0, this.offsets.block, rows);
+  }
+
+  multiplyUpper(): void {
+    this.product.fill(0);
+    this.multiply(0, this.offsets.vector, this.offsets.product);
+  }
+}
+
+class PlainScatterKernel implements ScatterKernel {
+  readonly scatter: Float64Array;
+  readonly block: Float64Array;
+  readonly vector: Float64Array;
+  readonly product: Float64Array;
+
+  constructor(
+    readonly d: number,
+    readonly size: number,
+    readonly capacity: number,
+  ) {
+    this.scatter = new Float64Array(size * size);
+    this.block = new Float64Array(capacity * size);
+    this.vector = new Float64Array(size);
+    this.product = new Float64Array(size);
+  }
+
+  update(rows: number): void {
+    // Row i of S, j ≥ i: Σ_t x_ti x_tj, a block row at a time.
+    const { d, size, scatter, block } = this;
+    for (let i = 0; i < d; i++) {
+      const row = i * size;
+      for (let t = 0; t < rows; t++) {
+        const base = t * size;
+        const xi = block[base + i];
+        for (let j = i; j < d; j++) scatter[row + j] += xi * block[base + j];
+      }
+    }
+  }
+
+  multiplyUpper(): void {
+    const { d, size, scatter, vector, product } = this;
+    product.fill(0);
+    for (let i = 0; i < d; i++) {
+      const row = i * size;
+      const vi = vector[i];
+      let sum = scatter[row + i] * vi;
+      for (let j = i + 1; j < d; j++) {
+        const value = scatter[row + j];
+        sum += value * vector[j];
+        product[j] += value * vi;
+      }
+      product[i] += sum;
+    }
+  }
+}
+
+/**
+ * A row-major kernel for d features and blocks of up to `capacity` rows (WebAssembly SIMD where
+ * the engine has it; `plain` forces the JavaScript version, which tests compare with it).
+ */
+export function createScatterKernel(d: number, capacity: number, plain = false): ScatterKernel {
+  const size = Math.max(TILE, Math.ceil(d / TILE) * TILE);
+  const module = plain ? null : rowModule(size);
+  return module ? new SimdScatterKernel(module, d, size, capacity) : new PlainScatterKernel(d, size, capacity);
 }

@@ -1,27 +1,30 @@
 /**
  * The streaming pass into per-class moments (moments.ts defines them). Memory is independent of
- * the row count: per class a d × d scatter and a buffer of 64 rows. The accumulator never sums
- * raw x xᵀ: each class's rows are shifted by the class's first row, buffered 64 at a time,
- * centred on the block mean, multiplied out as one blocked cross-product
- * (crossProductKernel.ts: WebAssembly SIMD, or linalg.crossProductUpdate, 2–3× faster than a rank-1
- * update per row, MEASURED.md) and merged
- * into the running centred moments with Chan et al.'s pairwise formula (momentShift.ts).
+ * the row count: per class a d × d scatter and a block of buffered rows (blockRowsFor(d): 64 for
+ * narrow tables, up to 256 for wide ones). The accumulator never sums raw x xᵀ: each class's rows
+ * are shifted by the class's first row, buffered row-major, centred on the block mean, multiplied
+ * out as one blocked cross-product (crossProductKernel.ts, ScatterKernel: WebAssembly SIMD, or a
+ * JavaScript loop where the engine lacks it) and merged into the running centred moments with
+ * Chan et al.'s pairwise formula (momentShift.ts).
  */
 import { DataError } from './errors';
-import { createCrossProductKernel, type CrossProductKernel } from './crossProductKernel';
-import { mirrorUpper, symmetricMultiplyUpper } from './linalg';
+import { createScatterKernel, type ScatterKernel } from './crossProductKernel';
 import { shiftQuartic } from './momentShift';
 import type { ClassMoments, Moments } from './moments';
 
-/** Rows buffered per class before one blocked update (MEASURED.md: ~64 is the sweet spot). */
-const BLOCK_ROWS = 64;
-/** Columns of the transposed block: the rows, the merge's correction row, and a spare to keep it even (crossProductKernel.ts). */
-const STRIDE = BLOCK_ROWS + 2;
+/**
+ * Rows buffered per class before one blocked update. Each update reads and writes the class's
+ * whole d × d scatter and the merge multiplies it by a vector once, so wide tables take more rows
+ * per block; the block (rows × d) stays no larger than the scatter.
+ */
+export function blockRowsFor(d: number): number {
+  return d < 128 ? 64 : d < 512 ? 128 : 256;
+}
 
 /**
  * Running moments of one class. The mean is kept relative to `shift` (the class's first row);
- * the scatter is accumulated in its upper triangle only. Rows wait in `block` (raw values,
- * transposed: feature i, buffered row t at i·stride + t) until BLOCK_ROWS have arrived.
+ * the scatter is accumulated in its upper triangle only (ScatterKernel: row length `size` ≥ d).
+ * Rows wait in `block` (raw values, row-major: buffered row t at t·size) until a block is full.
  */
 class ClassAccumulator {
   count = 0;
@@ -29,104 +32,74 @@ class ClassAccumulator {
   scatterTrace = 0;
   buffered = 0;
   readonly mean: Float64Array;
-  readonly scatter: Float64Array;
   readonly cubic: Float64Array;
   readonly min: Float64Array;
   readonly max: Float64Array;
   readonly shift: Float64Array;
+  readonly kernel: ScatterKernel;
   readonly block: Float64Array;
-  private readonly kernel: CrossProductKernel;
+  readonly size: number;
+  private readonly blockMean: Float64Array;
   private readonly blockCubic: Float64Array;
   private readonly delta: Float64Array;
-  private readonly scatterTimesDelta: Float64Array;
   private readonly blockTimesDelta: Float64Array;
-  private readonly rowNorms = new Float64Array(BLOCK_ROWS);
-  private readonly projections = new Float64Array(BLOCK_ROWS);
+  private readonly rowNorms: Float64Array;
+  private readonly projections: Float64Array;
 
   constructor(
     readonly label: string,
     readonly d: number,
     readonly features: readonly string[],
+    readonly blockRows: number,
   ) {
     this.mean = new Float64Array(d);
-    // The scatter and the block live in the cross-product kernel's memory (WebAssembly SIMD when available).
-    this.kernel = createCrossProductKernel(d, STRIDE);
-    this.scatter = this.kernel.scatter;
+    // The scatter and the block live in the kernel's memory (WebAssembly SIMD when available);
+    // one block row more for the merge's correction row.
+    this.kernel = createScatterKernel(d, blockRows + 1);
+    this.block = this.kernel.block;
+    this.size = this.kernel.size;
     this.cubic = new Float64Array(d);
     this.min = new Float64Array(d).fill(Infinity);
     this.max = new Float64Array(d).fill(-Infinity);
     this.shift = new Float64Array(d);
-    this.block = this.kernel.block;
+    this.blockMean = new Float64Array(d);
     this.blockCubic = new Float64Array(d);
     this.delta = new Float64Array(d);
-    this.scatterTimesDelta = new Float64Array(d);
     this.blockTimesDelta = new Float64Array(d);
+    this.rowNorms = new Float64Array(blockRows);
+    this.projections = new Float64Array(blockRows);
   }
 
   flush(): void {
     const nb = this.buffered;
     if (nb === 0) return;
     const d = this.d;
-    const stride = STRIDE;
+    const size = this.size;
     const y = this.block;
-    const { rowNorms, projections, delta, blockCubic, blockTimesDelta } = this;
+    const { rowNorms, projections, delta, blockMean, blockCubic, blockTimesDelta, min, max, shift } = this;
     const first = this.count === 0;
     if (first) {
-      for (let i = 0; i < d; i++) this.shift[i] = y[i * stride];
+      for (let i = 0; i < d; i++) shift[i] = y[i];
     }
-    // Pass 1 per feature: extremes, shift, block mean; then centre on the block mean, with the
-    // row norms ‖z_t‖² and the projections z_tᵀδ (δ = block mean − running mean) on the way.
-    rowNorms.fill(0, 0, nb);
-    projections.fill(0, 0, nb);
+    // Pass 1, row by row: extremes, shift, block sums (in blockMean).
+    shiftRows(y, size, d, nb, shift, min, max, blockMean);
     for (let i = 0; i < d; i++) {
-      const c = i * stride;
-      const shift = this.shift[i];
-      let lo = this.min[i];
-      let hi = this.max[i];
-      let sum = 0;
-      for (let t = 0; t < nb; t++) {
-        const x = y[c + t];
-        if (x < lo) lo = x;
-        if (x > hi) hi = x;
-        const v = x - shift;
-        y[c + t] = v;
-        sum += v;
-      }
-      if (!Number.isFinite(sum)) {
+      if (!Number.isFinite(blockMean[i])) {
         throw new DataError('non-finite-value', `Class "${this.label}" has a value that is not a finite number in column "${this.features[i]}".`, { column: this.features[i] });
       }
-      this.min[i] = lo;
-      this.max[i] = hi;
-      const blockMean = sum / nb;
-      const di = blockMean - this.mean[i];
-      delta[i] = di;
-      for (let t = 0; t < nb; t++) {
-        const z = y[c + t] - blockMean;
-        y[c + t] = z;
-        rowNorms[t] += z * z;
-        projections[t] += z * di;
-      }
+      blockMean[i] /= nb;
+      delta[i] = blockMean[i] - this.mean[i];
     }
-    // Pass 2 per feature: block cubic Σ‖z‖² z and S_B δ = Σ z (zᵀδ).
+    // Pass 2, row by row: centre on the block mean (δ = block mean − running mean).
+    centreRows(y, size, d, nb, blockMean, delta, rowNorms, projections, blockCubic, blockTimesDelta);
     let blockQuartic = 0;
     let blockTrace = 0;
     let blockDelta = 0; // δᵀ S_B δ
     for (let t = 0; t < nb; t++) {
-      blockQuartic += rowNorms[t] * rowNorms[t];
-      blockTrace += rowNorms[t];
+      const norm = rowNorms[t];
+      blockQuartic += norm * norm;
+      blockTrace += norm;
       blockDelta += projections[t] * projections[t];
-    }
-    for (let i = 0; i < d; i++) {
-      const c = i * stride;
-      let cubic = 0;
-      let product = 0;
-      for (let t = 0; t < nb; t++) {
-        const z = y[c + t];
-        cubic += rowNorms[t] * z;
-        product += projections[t] * z;
-      }
-      blockCubic[i] = cubic;
-      blockTimesDelta[i] = product;
     }
     if (first) {
       // The running mean was 0 (relative to the shift), so δ is the block mean.
@@ -146,8 +119,9 @@ class ClassAccumulator {
     const fB = nA / n;
     let deltaSq = 0;
     for (let i = 0; i < d; i++) deltaSq += delta[i] * delta[i];
-    const product = this.scatterTimesDelta;
-    symmetricMultiplyUpper(this.scatter, d, delta, product); // S_A δ
+    this.kernel.vector.set(delta);
+    this.kernel.multiplyUpper();
+    const product = this.kernel.product; // S_A δ
     let runningDelta = 0; // δᵀ S_A δ
     let runningCubicDelta = 0;
     let blockCubicDelta = 0;
@@ -169,7 +143,8 @@ class ClassAccumulator {
     this.quartic = quarticA + quarticB;
     // S = S_A + S_B + (nA nb / n) δδᵀ: the rank-1 term rides along as one more block row.
     const weight = Math.sqrt((nA * nb) / n);
-    for (let i = 0; i < d; i++) y[i * stride + nb] = weight * delta[i];
+    const correction = nb * size;
+    for (let i = 0; i < d; i++) y[correction + i] = weight * delta[i];
     this.kernel.update(nb + 1);
     this.scatterTrace += blockTrace + ((nA * nb) / n) * deltaSq;
     this.count = n;
@@ -178,21 +153,104 @@ class ClassAccumulator {
 
   snapshot(): ClassMoments {
     const d = this.d;
-    const scatter = this.scatter.slice(); // a copy (Float64Array.from would go element by element through an iterator)
-    mirrorUpper(scatter, d);
     const mean = new Float64Array(d);
     for (let i = 0; i < d; i++) mean[i] = this.shift[i] + this.mean[i];
     return {
       label: this.label,
       count: this.count,
       mean,
-      scatter,
-      min: Float64Array.from(this.min),
-      max: Float64Array.from(this.max),
-      cubic: Float64Array.from(this.cubic),
+      scatter: symmetricFromUpper(this.kernel.scatter, this.size, d),
+      min: this.min.slice(),
+      max: this.max.slice(),
+      cubic: this.cubic.slice(),
       quartic: this.quartic,
     };
   }
+}
+
+/*
+ * The per-element passes of a flush, each its own function with one hot loop nest: the engine
+ * optimises such a function whole, where one long method optimised in the middle of a loop kept
+ * deoptimising at the parts it had not yet seen run.
+ */
+
+/** Row by row: the extremes, the rows shifted (x − shift), their column sums added to `sums`. */
+function shiftRows(y: Float64Array, size: number, d: number, rows: number, shift: Float64Array, min: Float64Array, max: Float64Array, sums: Float64Array): void {
+  sums.fill(0);
+  for (let t = 0; t < rows; t++) {
+    const row = t * size;
+    for (let i = 0; i < d; i++) {
+      const x = y[row + i];
+      if (x < min[i]) min[i] = x;
+      if (x > max[i]) max[i] = x;
+      const v = x - shift[i];
+      y[row + i] = v;
+      sums[i] += v;
+    }
+  }
+}
+
+/**
+ * Row by row: z = y − mean in place, the row norm ‖z_t‖² and the projection z_tᵀδ; then, the row
+ * still in cache, its share of the block cubic Σ‖z‖² z and of S_B δ = Σ z (zᵀδ).
+ */
+function centreRows(
+  y: Float64Array,
+  size: number,
+  d: number,
+  rows: number,
+  mean: Float64Array,
+  delta: Float64Array,
+  rowNorms: Float64Array,
+  projections: Float64Array,
+  cubic: Float64Array,
+  timesDelta: Float64Array,
+): void {
+  cubic.fill(0);
+  timesDelta.fill(0);
+  for (let t = 0; t < rows; t++) {
+    const row = t * size;
+    let norm = 0;
+    let projection = 0;
+    for (let i = 0; i < d; i++) {
+      const z = y[row + i] - mean[i];
+      y[row + i] = z;
+      norm += z * z;
+      projection += z * delta[i];
+    }
+    for (let i = 0; i < d; i++) {
+      const z = y[row + i];
+      cubic[i] += norm * z;
+      timesDelta[i] += projection * z;
+    }
+    rowNorms[t] = norm;
+    projections[t] = projection;
+  }
+}
+
+/**
+ * The full d × d symmetric matrix from the upper triangle of a size × size one, in 32 × 32 tiles
+ * (a column written element by element down a large matrix misses the cache at every step).
+ */
+function symmetricFromUpper(upper: Float64Array, size: number, d: number): Float64Array {
+  const out = new Float64Array(d * d);
+  const TILE_SIDE = 32;
+  for (let i0 = 0; i0 < d; i0 += TILE_SIDE) {
+    const iEnd = Math.min(d, i0 + TILE_SIDE);
+    for (let j0 = i0; j0 < d; j0 += TILE_SIDE) {
+      const jEnd = Math.min(d, j0 + TILE_SIDE);
+      for (let i = i0; i < iEnd; i++) {
+        const from = i * size;
+        const row = i * d;
+        for (let j = Math.max(j0, i); j < jEnd; j++) {
+          const value = upper[from + j];
+          out[row + j] = value;
+          out[j * d + i] = value;
+        }
+      }
+    }
+  }
+  return out;
 }
 
 /** One streaming pass of clean rows into per-class moments. */
@@ -201,8 +259,11 @@ export class MomentsAccumulator {
   private readonly classes: ClassAccumulator[] = [];
   private readonly byLabel = new Map<string, ClassAccumulator>();
 
+  private readonly blockRows: number;
+
   constructor(readonly features: string[]) {
     this.d = features.length;
+    this.blockRows = blockRowsFor(this.d);
   }
 
   /**
@@ -212,7 +273,6 @@ export class MomentsAccumulator {
    */
   add(values: Float64Array, classIds: Int32Array, rows: number, labels: readonly string[]): void {
     const d = this.d;
-    const stride = STRIDE;
     const local: (ClassAccumulator | undefined)[] = new Array(labels.length);
     for (let r = 0; r < rows; r++) {
       const id = classIds[r];
@@ -222,18 +282,19 @@ export class MomentsAccumulator {
         const label = labels[id];
         target = this.byLabel.get(label);
         if (target === undefined) {
-          target = new ClassAccumulator(label, d, this.features);
+          target = new ClassAccumulator(label, d, this.features, this.blockRows);
           this.byLabel.set(label, target);
           this.classes.push(target);
         }
         local[id] = target;
       }
       const base = r * d;
-      const column = target.buffered;
+      const t = target.buffered;
       const block = target.block;
-      for (let i = 0; i < d; i++) block[i * stride + column] = values[base + i];
-      target.buffered = column + 1;
-      if (column + 1 === BLOCK_ROWS) target.flush();
+      const at = t * target.size;
+      for (let i = 0; i < d; i++) block[at + i] = values[base + i];
+      target.buffered = t + 1;
+      if (t + 1 === this.blockRows) target.flush();
     }
   }
 

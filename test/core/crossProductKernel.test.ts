@@ -4,7 +4,7 @@
  * edge (d below, at and above multiples of 2 and 4; odd and even row counts up to the stride).
  */
 import { strict as assert } from 'node:assert';
-import { createCrossProductKernel, simdAvailable } from '../../src/core/crossProductKernel';
+import { createCrossProductKernel, createScatterKernel, simdAvailable } from '../../src/core/crossProductKernel';
 import { uniform } from './generatedTables';
 
 describe('cross-product kernel (S += YᵀY)', () => {
@@ -50,4 +50,54 @@ describe('cross-product kernel (S += YᵀY)', () => {
   it('refuses an odd stride (an odd block is padded with a zero row)', () => {
     assert.throws(() => createCrossProductKernel(4, 67), RangeError);
   });
+});
+
+describe('row-major scatter kernel (S += XᵀX, S·v from the upper triangle)', () => {
+  for (const plain of [false, true]) {
+    it(`${plain ? 'plain JavaScript' : 'WebAssembly SIMD'}: equals the triple loop on the upper triangle, keeps the padding zero, multiplies by the symmetric S`, () => {
+      const draw = uniform(12);
+      for (const d of [1, 2, 3, 4, 5, 7, 8, 9, 13, 16, 23]) {
+        for (const rows of [1, 2, 3, 8, 64, 65]) {
+          const kernel = createScatterKernel(d, 65, plain);
+          const size = kernel.size;
+          assert.ok(size >= d && size % 4 === 0, `size ${size} for d=${d}`);
+          const expected = new Float64Array(d * d);
+          for (let round = 0; round < 3; round++) {
+            for (let t = 0; t < rows; t++) for (let i = 0; i < d; i++) kernel.block[t * size + i] = draw() * 2 - 1;
+            for (let i = 0; i < d; i++) {
+              for (let j = i; j < d; j++) {
+                let sum = 0;
+                for (let t = 0; t < rows; t++) sum += kernel.block[t * size + i]! * kernel.block[t * size + j]!;
+                expected[i * d + j]! += sum;
+              }
+            }
+            kernel.update(rows);
+          }
+          let scale = 0;
+          for (const v of expected) scale = Math.max(scale, Math.abs(v));
+          // Sums of up to 3·65 products, in a different order: a few ulps of the largest entry.
+          const tolerance = 4 * 3 * rows * Number.EPSILON * Math.max(1, scale);
+          for (let i = 0; i < size; i++) {
+            for (let j = 0; j < size; j++) {
+              const got = kernel.scatter[i * size + j]!;
+              if (i >= d || j >= d) assert.equal(got, 0, `d=${d} rows=${rows}: padding entry (${i}, ${j}) written`);
+              else if (j >= i) assert.ok(Math.abs(got - expected[i * d + j]!) <= tolerance, `d=${d} rows=${rows} (${i}, ${j}): ${got} vs ${expected[i * d + j]}`);
+            }
+          }
+          // product = S v with S the symmetric matrix whose upper triangle is `expected`; lower
+          // entries of the kernel's S (left undefined) must not be read: fill them with garbage.
+          for (let i = 0; i < d; i++) for (let j = 0; j < i; j++) kernel.scatter[i * size + j] = 1e300;
+          const v = Array.from({ length: d }, () => draw() * 2 - 1);
+          kernel.vector.set(v);
+          kernel.product.fill(7); // overwritten, not added to
+          kernel.multiplyUpper();
+          for (let i = 0; i < d; i++) {
+            let sum = 0;
+            for (let j = 0; j < d; j++) sum += expected[Math.min(i, j) * d + Math.max(i, j)]! * v[j]!;
+            assert.ok(Math.abs(kernel.product[i]! - sum) <= tolerance * 2 * d, `d=${d} rows=${rows}: (S v)[${i}] ${kernel.product[i]} vs ${sum}`);
+          }
+        }
+      }
+    });
+  }
 });
