@@ -1,8 +1,9 @@
 /**
  * The wide-table figures of the side-by-side benchmark, measured in a child process:
- *  - the moments update (MomentsAccumulator: per-class shift, 64-row blocks, the blocked rank-k
- *    cross-product, Chan merges) over n rows of d features held in memory, against numpy's
- *    X.T @ X on the very same rows (bench/alternatives/cross_product.py reads the file written here);
+ *  - the moments update (MomentsAccumulator: per-class shift, blocks of rows, the blocked rank-k
+ *    cross-product, Chan merges) over n rows of d features held in memory, in one thread and split
+ *    over two (as the parallel pass 1 runs it), against numpy's X.T @ X on the very same rows
+ *    (bench/alternatives/cross_product.py reads the file written here);
  *  - the fit from moments at d = 1000, K = 10: solveLda alone (the discriminants, the target) and
  *    fitMoments (everything a report takes from the moments: LDA, PCA, the tests with Box's M).
  * Rows: uniform values with small class shifts on every third feature, K classes in turn, from the
@@ -12,7 +13,7 @@ import { closeSync, existsSync, openSync, readFileSync, writeSync } from 'node:f
 import { Worker, parentPort } from 'node:worker_threads';
 import { simdAvailable } from '../src/core/crossProductKernel';
 import { solveLda } from '../src/core/lda';
-import { MomentsAccumulator, mergeMoments, type Moments } from '../src/core/moments';
+import { MomentsAccumulator, mergeMomentsInPlace, momentsBuffers, type Moments } from '../src/core/moments';
 import { fitMoments } from '../src/core/pipeline/fitMoments';
 import { resolveOptions } from '../src/core/pipeline/options';
 
@@ -52,8 +53,14 @@ export interface KernelResult {
   /** Median seconds of the moments update over all n rows, in one thread. */
   momentsSeconds: number;
   momentsCpuSeconds: number;
-  /** Median seconds of the same split over two threads and merged, as the parallel pass 1 does. */
+  /**
+   * Median seconds of the same rows split over two worker threads, each started, holding its half
+   * and warmed up before the clock starts; the clock covers the update, the moments handed back
+   * (transferred, not copied) and the merge, as the parallel pass 1 needs them.
+   */
   twoThreadSeconds: number;
+  /** CPU seconds of the whole process (both workers and the merging thread) over that span: on a shared machine the cost of the split without the other load's waiting. */
+  twoThreadCpuSeconds: number;
   /** With `fit`: median seconds of solveLda and of fitMoments on the moments. */
   solveLdaSeconds?: number;
   fitMomentsSeconds?: number;
@@ -69,33 +76,46 @@ export interface HalfTask {
 
 /**
  * In a worker thread started by twoThreads: reads its half of the rows, warms up, and on 'go'
- * accumulates them and posts the moments.
+ * accumulates them and hands the moments back by transfer.
  */
 export function kernelHalfWorker(task: HalfTask): void {
   const values = readRows(task.path, task.n, task.d, task.first);
   const ids = Int32Array.from({ length: task.n }, (_, i) => (task.first + i) % task.classes);
   const labels = Array.from({ length: task.classes }, (_, k) => `class ${k + 1}`);
   const features = Array.from({ length: task.d }, (_, j) => `feature_${j + 1}`);
-  new MomentsAccumulator(features).add(values, ids, Math.min(task.n, 2000), labels);
+  warmUp(features, values, ids, task.n, labels);
   parentPort!.postMessage('ready');
   parentPort!.once('message', () => {
     const accumulator = new MomentsAccumulator(features);
     accumulator.add(values, ids, task.n, labels);
-    parentPort!.postMessage(accumulator.result());
+    const moments = accumulator.result();
+    parentPort!.postMessage(moments, momentsBuffers(moments));
   });
 }
 
-/** Seconds to accumulate the rows in two threads (one half each) and merge their moments. */
-function twoThreads(path: string, n: number, d: number, classes: number): Promise<number> {
+/**
+ * Runs the accumulator over the rows once and takes the result, so that the timed runs see
+ * optimised code (JavaScript and WebAssembly tiered up), as the bulk of a long pass does: in a
+ * fresh thread a shorter warm-up left the first timed run up to twice as slow.
+ */
+function warmUp(features: string[], values: Float64Array, ids: Int32Array, n: number, labels: string[]): void {
+  const warm = new MomentsAccumulator(features);
+  warm.add(values, ids, n, labels);
+  warm.result();
+}
+
+/** Seconds (wall and CPU) to accumulate the rows in two threads (one half each) and merge their moments. */
+function twoThreads(path: string, n: number, d: number, classes: number): Promise<{ wall: number; cpu: number }> {
   const half = Math.floor(n / 2);
   const tasks: HalfTask[] = [
     { path, first: 0, n: half, d, classes },
     { path, first: half, n: n - half, d, classes },
   ];
-  return new Promise<number>((resolve, reject) => {
+  return new Promise<{ wall: number; cpu: number }>((resolve, reject) => {
     const workers = tasks.map((task) => new Worker(__filename, { workerData: { kernelHalf: task } }));
     let ready = 0;
     let started = 0;
+    let used = process.cpuUsage();
     const parts: Moments[] = [];
     for (const worker of workers) {
       worker.on('error', reject);
@@ -103,15 +123,17 @@ function twoThreads(path: string, n: number, d: number, classes: number): Promis
         if (message === 'ready') {
           if (++ready === workers.length) {
             started = performance.now();
+            used = process.cpuUsage();
             for (const w of workers) w.postMessage('go');
           }
           return;
         }
         parts.push(message as Moments);
         if (parts.length === workers.length) {
-          mergeMoments(parts[0]!, parts[1]!);
+          mergeMomentsInPlace(parts[0]!, parts[1]!);
           const seconds = (performance.now() - started) / 1000;
-          void Promise.all(workers.map((w) => w.terminate())).then(() => resolve(seconds));
+          const cpu = process.cpuUsage(used);
+          void Promise.all(workers.map((w) => w.terminate())).then(() => resolve({ wall: seconds, cpu: (cpu.user + cpu.system) / 1e6 }));
         }
       });
     }
@@ -124,8 +146,7 @@ export async function measureKernel(path: string, n: number, d: number, classes:
   const ids = Int32Array.from({ length: n }, (_, i) => i % classes);
   const labels = Array.from({ length: classes }, (_, k) => `class ${k + 1}`);
   const features = Array.from({ length: d }, (_, j) => `feature_${j + 1}`);
-  // Warm-up on a slice, so the timed runs see optimised code, as a long pass does.
-  new MomentsAccumulator(features).add(values, ids, Math.min(n, 2000), labels);
+  warmUp(features, values, ids, n, labels);
   const wall: number[] = [];
   const cpu: number[] = [];
   let accumulator = new MomentsAccumulator(features);
@@ -135,12 +156,26 @@ export async function measureKernel(path: string, n: number, d: number, classes:
     const used = process.cpuUsage();
     accumulator.add(values, ids, n, labels);
     accumulator.result();
-    cpu.push(process.cpuUsage(used).user / 1e6);
+    const spent = process.cpuUsage(used);
+    cpu.push((spent.user + spent.system) / 1e6);
     wall.push((performance.now() - started) / 1000);
   }
   const two: number[] = [];
-  for (let round = 0; round < 3; round++) two.push(await twoThreads(path, n, d, classes));
-  const result: KernelResult = { n, d, simd: simdAvailable(), momentsSeconds: median(wall), momentsCpuSeconds: median(cpu), twoThreadSeconds: median(two) };
+  const twoCpu: number[] = [];
+  for (let round = 0; round < 3; round++) {
+    const split = await twoThreads(path, n, d, classes);
+    two.push(split.wall);
+    twoCpu.push(split.cpu);
+  }
+  const result: KernelResult = {
+    n,
+    d,
+    simd: simdAvailable(),
+    momentsSeconds: median(wall),
+    momentsCpuSeconds: median(cpu),
+    twoThreadSeconds: median(two),
+    twoThreadCpuSeconds: median(twoCpu),
+  };
   if (fit) {
     const moments = accumulator.result();
     const options = resolveOptions({});

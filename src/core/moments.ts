@@ -53,40 +53,77 @@ function requireSameFeatures(a: Moments, b: Moments, operation: string): void {
   }
 }
 
-function copyClass(c: ClassMoments): ClassMoments {
+/** A copy of a class (with `scatter` as its scatter when given). */
+function copyClass(c: ClassMoments, scatter: Float64Array = c.scatter.slice()): ClassMoments {
+  // slice() copies a typed array in one block; Float64Array.from would go element by element.
   return {
     label: c.label,
     count: c.count,
-    mean: Float64Array.from(c.mean),
-    scatter: Float64Array.from(c.scatter),
-    min: Float64Array.from(c.min),
-    max: Float64Array.from(c.max),
-    cubic: Float64Array.from(c.cubic),
+    mean: c.mean.slice(),
+    scatter,
+    min: c.min.slice(),
+    max: c.max.slice(),
+    cubic: c.cubic.slice(),
     quartic: c.quartic,
   };
 }
 
-/** Moments of the union of two disjoint row sets; classes matched by label. */
+/** Moments of the union of two disjoint row sets; classes matched by label. Neither argument changes. */
 export function mergeMoments(a: Moments, b: Moments): Moments {
   requireSameFeatures(a, b, 'merge');
   const d = a.features.length;
-  const classes = a.classes.map(copyClass);
-  const index = new Map(classes.map((c, i) => [c.label, i]));
-  for (const cb of b.classes) {
-    const at = index.get(cb.label);
-    if (at === undefined) {
-      index.set(cb.label, classes.length);
-      classes.push(copyClass(cb));
-      continue;
-    }
-    classes[at] = mergeClass(classes[at], cb, d);
+  const classes: ClassMoments[] = [];
+  const index = new Map<string, number>();
+  for (const ca of a.classes) {
+    index.set(ca.label, classes.length);
+    const cb = b.classes.find((c) => c.label === ca.label);
+    classes.push(cb ? mergeClass(ca, cb, d, new Float64Array(d * d)) : copyClass(ca));
   }
+  for (const cb of b.classes) if (!index.has(cb.label)) classes.push(copyClass(cb));
   return { features: [...a.features], classes };
 }
 
-function mergeClass(a: ClassMoments, b: ClassMoments, d: number): ClassMoments {
-  if (a.count === 0) return copyClass(b);
-  if (b.count === 0) return copyClass(a);
+/**
+ * The same union as mergeMoments, written over `into` (returned): its classes' scatters are
+ * updated in place and `part`'s new classes are taken over as they are, so a parallel pass merging
+ * the moments its workers handed over allocates and copies no d × d matrix. `part` must not be
+ * used afterwards.
+ */
+export function mergeMomentsInPlace(into: Moments, part: Moments): Moments {
+  requireSameFeatures(into, part, 'merge');
+  const d = into.features.length;
+  const index = new Map(into.classes.map((c, i) => [c.label, i]));
+  for (const cb of part.classes) {
+    const at = index.get(cb.label);
+    if (at === undefined) {
+      index.set(cb.label, into.classes.length);
+      into.classes.push(cb);
+    } else into.classes[at] = mergeClass(into.classes[at]!, cb, d, into.classes[at]!.scatter);
+  }
+  return into;
+}
+
+/**
+ * The ArrayBuffers behind a Moments' arrays, each once: the transfer list that hands moments to
+ * another thread without copying them (postMessage(moments, momentsBuffers(moments))). The arrays
+ * on the sending side are unusable afterwards.
+ */
+export function momentsBuffers(m: Moments): ArrayBuffer[] {
+  const buffers = new Set<ArrayBuffer>();
+  for (const c of m.classes) for (const array of [c.mean, c.scatter, c.min, c.max, c.cubic]) if (array.buffer instanceof ArrayBuffer) buffers.add(array.buffer);
+  return [...buffers];
+}
+
+/** The merged class; its scatter is written into `scatter`, which may be a's own (read before written, element by element). */
+function mergeClass(a: ClassMoments, b: ClassMoments, d: number, scatter: Float64Array): ClassMoments {
+  if (a.count === 0) {
+    scatter.set(b.scatter);
+    return copyClass(b, scatter);
+  }
+  if (b.count === 0) {
+    if (scatter !== a.scatter) scatter.set(a.scatter);
+    return copyClass(a, scatter);
+  }
   const n = a.count + b.count;
   const delta = new Float64Array(d);
   for (let i = 0; i < d; i++) delta[i] = b.mean[i] - a.mean[i];
@@ -104,12 +141,12 @@ function mergeClass(a: ClassMoments, b: ClassMoments, d: number): ClassMoments {
     shiftQuartic(a.quartic, dotProduct(eA, sAe), dotProduct(a.cubic, eA), trA, a.count, dotProduct(eA, eA)) +
     shiftQuartic(b.quartic, dotProduct(eB, sBe), dotProduct(b.cubic, eB), trB, b.count, dotProduct(eB, eB));
   const weight = (a.count * b.count) / n;
-  const scatter = new Float64Array(d * d);
+  const aScatter = a.scatter;
+  const bScatter = b.scatter;
   for (let i = 0; i < d; i++) {
-    for (let j = 0; j < d; j++) {
-      const k = i * d + j;
-      scatter[k] = a.scatter[k] + b.scatter[k] + weight * delta[i] * delta[j];
-    }
+    const row = i * d;
+    const w = weight * delta[i];
+    for (let j = 0; j < d; j++) scatter[row + j] = aScatter[row + j] + bScatter[row + j] + w * delta[j];
   }
   const mean = new Float64Array(d);
   for (let i = 0; i < d; i++) mean[i] = a.mean[i] + (b.count / n) * delta[i];

@@ -3,7 +3,9 @@ import { DataError } from '../../src/core/errors';
 import {
   betweenScatter,
   mergeMoments,
+  mergeMomentsInPlace,
   MomentsAccumulator,
+  momentsBuffers,
   momentsFromJSON,
   momentsToJSON,
   overallMean,
@@ -36,6 +38,14 @@ describe('moments', () => {
     // Batch size must not matter (blocks of 64 straddle batches differently).
     assertMatchesReference(accumulate(rows, 1), rows, 1e-12);
     assertMatchesReference(accumulate(rows, 1000), rows, 1e-12);
+  });
+
+  it('wide tables (blocks of 128 and 256 rows, d not a multiple of the kernel tile) equal the two-pass definitions', function () {
+    this.timeout(30000);
+    for (const [d, counts] of [[131, [700, 301]], [517, [560, 30]]] as const) {
+      const wide = generateRows({ seed: 5, counts: [...counts], d });
+      assertMatchesReference(accumulate(wide, 97), wide, 1e-12);
+    }
   });
 
   it('keeps per-feature min and max and the classes in order of first appearance', () => {
@@ -97,6 +107,14 @@ describe('moments', () => {
       assert.deepEqual(m.min, c.min);
       assert.deepEqual(m.max, c.max);
     }
+    // Merged in place, after a transfer as between threads: the same numbers, and no copy made.
+    const copies = parts.map((p) => structuredClone(p));
+    const sent = copies.map((p) => structuredClone(p, { transfer: momentsBuffers(p) }));
+    assert.equal(copies[0]!.classes[0]!.scatter.length, 0, 'transferred arrays are detached on the sending side');
+    const firstScatter = sent[0]!.classes[0]!.scatter;
+    const inPlace = sent.slice(1).reduce((acc, p) => mergeMomentsInPlace(acc, p), sent[0]!);
+    assert.deepEqual(inPlace, merged);
+    assert.equal(inPlace.classes[0]!.scatter, firstScatter, 'the scatter was updated in place');
     // total − shard 2 = shards 0, 1, 3 (the cross-validation training set).
     const rest = subtractMoments(merged, parts[2]);
     assertMatchesReference(rest, rows, 1e-11, [...shards[0], ...shards[1], ...shards[3]]);
