@@ -2,19 +2,15 @@
  * Parquet through hyparquet (+ hyparquet-compressors: snappy, gzip, zstd, brotli, lz4), pure
  * JavaScript, so it also runs in a browser worker.
  *
- * The scan reads one row group at a time, one column at a time, and turns each column into a
- * typed array at once (8 bytes a feature value, 4 a label id), so the decoded JavaScript values of
- * only one column chunk are alive at any moment. A whole row group is decoded page by page
- * (parquetPages.ts). A row group too large for `wholeGroupBytes` is read in slices of `sliceRows`
- * rows through hyparquet's rowStart/rowEnd when every needed column chunk has an offset index
- * (hyparquet then decodes only the pages of the slice) or is small; otherwise a slice would decode
- * its column from the row group's first page again (measured 4.6× slower on a DuckDB file, whose
- * column chunks are a single page), so such a group is read whole too. Memory is therefore
- * bounded by the rows read at a time × (8·features + 4) bytes plus one decoded column chunk: a
- * file written in one huge row group without offset indexes needs memory in proportion to it
- * (see bench/reader.ts).
+ * The scan reads a row group with one cursor per needed column (parquetCursor.ts), advancing them
+ * in lockstep a batch of `batchRows` rows at a time and writing each column's values straight into
+ * the batch. A page is read from the source in windows of `readBytes` and a large page is decoded
+ * as it is read, so memory is bounded by the columns × (two windows + one dictionary) however
+ * large a row group or page is (DuckDB writes one page per column chunk, even in a row group of
+ * millions of rows). The dictionaries are the part that may be large: DuckDB's can hold most of a
+ * column's distinct values.
  */
-import { parquetMetadataAsync, parquetRead, type AsyncBuffer, type ColumnData, type FileMetaData } from 'hyparquet';
+import { parquetMetadataAsync, parquetRead, type AsyncBuffer, type ColumnData, type DecodedArray, type FileMetaData } from 'hyparquet';
 import { compressors } from 'hyparquet-compressors';
 import { CancelledError, DataError } from '../errors';
 import type { ByteSource, RunControl } from '../source';
@@ -22,25 +18,21 @@ import { CELL_MISSING, CELL_TEXT } from './cellValue';
 import { ColumnSample } from './columnSample';
 import { isParquetMagic } from './format';
 import { asyncBufferOf, ParquetFeatureReader, textOf } from './parquetValues';
-import { readFlatColumnPages, type FlatPage } from './parquetPages';
+import { FlatColumnCursor, type ColumnPiece, type CursorTuning } from './parquetCursor';
 import { parquetColumns, type ParquetColumn } from './parquetSchema';
 import { PassProgress } from './progress';
 import { readCopy } from './readBytes';
 import { cellRulesFor } from './textOptions';
 import { DEFAULT_MISSING_TOKENS, type CellExample, type ColumnSummary, type ReaderNote, type ReadOptions, type ScanRequest, type ScanSummary, type TableInspection } from './types';
 
-export interface ParquetTuning {
-  /** A row group whose rows need at most this many bytes in typed arrays is read whole. */
-  wholeGroupBytes: number;
-  /** Rows decoded at a time within a larger row group, when it can be sliced. */
-  sliceRows: number;
-  /** Rows per batch handed to onBatch. */
+export interface ParquetTuning extends CursorTuning {
+  /** Rows per batch handed to onBatch (and decoded at a time from each column). */
   batchRows: number;
   /** Rows summarised by `inspect`. */
   sampleRows: number;
 }
 
-export const DEFAULT_PARQUET_TUNING: ParquetTuning = { wholeGroupBytes: 64 * 1024 * 1024, sliceRows: 65_536, batchRows: 4096, sampleRows: 10_000 };
+export const DEFAULT_PARQUET_TUNING: ParquetTuning = { readBytes: 256 * 1024, streamPageBytes: 1024 * 1024, batchRows: 4096, sampleRows: 10_000 };
 
 const EXAMPLES = 5;
 const DOUBLE_DIGITS = 15;
@@ -119,40 +111,77 @@ async function readColumnRows(opened: OpenedParquet, name: string, column: strin
   return chunks;
 }
 
-/** readFlatColumnPages with its errors as DataErrors naming the file, row group and column. */
-async function readFlatColumn(opened: OpenedParquet, name: string, group: FileMetaData['row_groups'][number], column: string, onPage: (page: FlatPage) => void, rowLimit?: number): Promise<boolean> {
-  try {
-    return await readFlatColumnPages(opened.file, opened.metadata, group, column, compressors, onPage, rowLimit);
-  } catch (error) {
-    if (error instanceof DataError || error instanceof CancelledError) throw error;
-    throw new DataError(
-      'parquet-invalid',
-      `${name}: column ${column} of a row group cannot be decoded (${(error as Error).message}).`,
-      { file: name, column },
-      'The file may be truncated or damaged; write or copy it again.',
-    );
-  }
+type RowGroup = FileMetaData['row_groups'][number];
+
+/** A damaged column as a DataError naming the file, the rows and the column. */
+function columnError(error: unknown, name: string, column: string, row: number): Error {
+  if (error instanceof DataError || error instanceof CancelledError) return error;
+  return new DataError(
+    'parquet-invalid',
+    `${name}: column ${column} cannot be decoded from row ${row} on (${(error as Error).message}).`,
+    { file: name, row, column },
+    'The file may be truncated or damaged; write or copy it again.',
+  );
 }
 
 /**
- * Stores a page's rows through `store(row, value)`; when the page has no nulls and its values are
- * a typed array of numbers, feature columns (`numericTargets`, unless the column is also the
- * label) are filled by one typed copy instead.
+ * One column of a row group read a batch at a time: through a FlatColumnCursor, or for a column it
+ * cannot read (not flat, in another file) through hyparquet's reader, the whole group at once.
  */
-function storePage(page: FlatPage, groupStart: number, store: (row: number, value: unknown) => void, numericTargets: Float64Array[], rangeStart: number): void {
-  const { values, definitionLevels, presentLevel } = page;
-  const first = groupStart + page.firstRow;
-  const typedNumbers = values instanceof Float64Array || values instanceof Float32Array || values instanceof Int32Array || values instanceof Uint32Array;
-  if (definitionLevels.length === 0 && typedNumbers && numericTargets.length > 0) {
-    for (const target of numericTargets) target.set(values.subarray(0, page.rows), first - rangeStart);
-    return;
+class ColumnRows {
+  private chunks: ColumnData[] | null = null;
+  private row = 0;
+
+  private constructor(
+    private readonly opened: OpenedParquet,
+    private readonly name: string,
+    readonly column: string,
+    private readonly groupStart: number,
+    private readonly groupRows: number,
+    private readonly cursor: FlatColumnCursor | null,
+  ) {}
+
+  static open(opened: OpenedParquet, source: ByteSource, group: RowGroup, groupStart: number, column: string, tuning: ParquetTuning): ColumnRows {
+    const cursor = FlatColumnCursor.open(source, opened.metadata, group, column, compressors, tuning);
+    return new ColumnRows(opened, source.name, column, groupStart, Number(group.num_rows), cursor);
   }
-  if (definitionLevels.length === 0) {
-    for (let i = 0; i < page.rows; i++) store(first + i, values[i]);
-    return;
+
+  /** Calls onPiece for the next `rows` rows of the group, in order, with the batch position of each piece's first row. */
+  async read(rows: number, onPiece: (piece: ColumnPiece, at: number) => void): Promise<void> {
+    let done = 0;
+    try {
+      if (this.cursor) {
+        while (done < rows) {
+          const piece = await this.cursor.next(rows - done);
+          onPiece(piece, done);
+          done += piece.rows;
+        }
+      } else {
+        this.chunks ??= await readColumnRows(this.opened, this.name, this.column, this.groupStart, this.groupStart + this.groupRows);
+        const values: unknown[] = [];
+        forEachRow(this.chunks, this.groupStart + this.row, this.groupStart + this.row + rows, (_row, value) => values.push(value));
+        if (values.length !== rows) throw new Error(`${values.length} of ${rows} rows`);
+        onPiece({ rows, levels: null, levelStart: 0, presentLevel: 0, values: values as DecodedArray, indexes: null, dictionary: null, valueStart: 0 }, 0);
+      }
+    } catch (error) {
+      throw columnError(error, this.name, this.column, this.groupStart + this.row + done);
+    }
+    this.row += rows;
   }
-  let next = 0;
-  for (let i = 0; i < page.rows; i++) store(first + i, definitionLevels[i] === presentLevel ? values[next++] : null);
+}
+
+/** Calls visit(row, value) for each row of a piece (null for a missing value), `first` being the row of its first. */
+function forEachValue(piece: ColumnPiece, first: number, visit: (row: number, value: unknown) => void): void {
+  const { levels, levelStart, presentLevel, values, indexes, dictionary } = piece;
+  let next = piece.valueStart;
+  for (let i = 0; i < piece.rows; i++) {
+    if (levels && levels[levelStart + i] !== presentLevel) {
+      visit(first + i, null);
+      continue;
+    }
+    visit(first + i, indexes ? dictionary![indexes[next]] : values![next]);
+    next++;
+  }
 }
 
 /** Calls `visit(row, value)` for rows [rowStart, rowEnd) of a column's chunks, in row order. */
@@ -164,28 +193,9 @@ function forEachRow(chunks: readonly ColumnData[], rowStart: number, rowEnd: num
   }
 }
 
-/** A column chunk this small (uncompressed) costs little to decode again for every slice. */
-const SMALL_CHUNK_BYTES = 1024 * 1024;
-
-/**
- * Row ranges of a row group read at a time: the whole group when its rows fit `wholeGroupBytes`
- * as typed arrays (`rowBytes` each) or when it cannot be sliced cheaply; else slices, when every
- * needed column chunk has an offset index or is small.
- */
-function rowRanges(group: FileMetaData['row_groups'][number], groupStart: number, needed: ReadonlySet<string>, rowBytes: number, tuning: ParquetTuning): [number, number][] {
-  const rows = Number(group.num_rows);
-  const sliceRows = tuning.sliceRows;
-  const sliceable = rows * rowBytes > tuning.wholeGroupBytes && group.columns.every(
-    (chunk) =>
-      !needed.has(chunk.meta_data?.path_in_schema[0] ?? '') ||
-      (chunk.offset_index_offset !== undefined && (chunk.offset_index_length ?? 0) > 0) ||
-      Number(chunk.meta_data?.total_uncompressed_size ?? Infinity) <= SMALL_CHUNK_BYTES,
-  );
-  const step = sliceable ? Math.max(1, sliceRows) : Math.max(1, rows);
-  const ranges: [number, number][] = [];
-  for (let start = groupStart; start < groupStart + rows; start += step) ranges.push([start, Math.min(start + step, groupStart + rows)]);
-  return ranges;
-}
+type NumberArray = Float64Array | Float32Array | Int32Array | Uint32Array;
+const isNumberArray = (values: unknown): values is NumberArray =>
+  values instanceof Float64Array || values instanceof Float32Array || values instanceof Int32Array || values instanceof Uint32Array;
 
 function schemaNotes(columns: ParquetColumn[]): ReaderNote[] {
   const notes: ReaderNote[] = [];
@@ -228,10 +238,10 @@ export async function inspectParquet(source: ByteSource, options: ReadOptions, c
         else sample.addText(text);
       }
     };
-    // The first row group page by page when it holds the whole sample, else hyparquet's reader across groups.
+    // The first row group through a cursor when it holds the whole sample (only the sampled rows are decoded), else hyparquet's reader across groups.
     const firstGroup = opened.metadata.row_groups[0];
-    const paged = Number(firstGroup.num_rows) >= sampledRows && (await readFlatColumn(opened, source.name, firstGroup, column.name, (page) => storePage(page, 0, visit, [], 0), sampledRows));
-    if (!paged) forEachRow(await readColumnRows(opened, source.name, column.name, 0, sampledRows), 0, sampledRows, visit);
+    if (Number(firstGroup.num_rows) >= sampledRows) await ColumnRows.open(opened, source, firstGroup, 0, column.name, tuning).read(sampledRows, (piece, at) => forEachValue(piece, at, visit));
+    else forEachRow(await readColumnRows(opened, source.name, column.name, 0, sampledRows), 0, sampledRows, visit);
     const summary = sample.summary();
     columns.push(summary.kind === 'empty' ? summary : { ...summary, kind: column.kind });
     progress.update(0);
@@ -277,10 +287,10 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
   const lostPrecision = new Array<number>(d).fill(0);
   const reader = new ParquetFeatureReader(rules);
   const progress = new PassProgress(request.control, request.pass ?? 'rows', source.size);
-  // The rows being read, column by column: one typed array per feature, one of label ids.
-  let columnValues: Float64Array[] = features.map(() => new Float64Array(0));
-  let columnLabels = new Int32Array(0);
+  // Per needed column: the feature slots it fills, and whether it is the label.
+  const targets = needed.map((column) => ({ column, slots: features.flatMap((feature, slot) => (feature.name === column ? [slot] : [])), label: label?.name === column }));
 
+  // Labels are interned in row order, so ids follow the order of first appearance.
   const labelId = (value: unknown): number => {
     const text = textOf(value, rules);
     if (text === undefined) return -1;
@@ -292,63 +302,84 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
     }
     return id;
   };
+  // A dictionary-encoded label column: the id of each dictionary entry, found once (-2: not yet).
+  let labelDictionary: DecodedArray | null = null;
+  let labelOfIndex = new Int32Array(0);
+
+  const storeFeature = (slot: number, batchRow: number, row: number, value: unknown): void => {
+    if (typeof value === 'number') {
+      values[batchRow * d + slot] = value;
+      return;
+    }
+    values[batchRow * d + slot] = reader.valueOf(value);
+    if (reader.lostPrecision) lostPrecision[slot]++;
+    if (reader.lastKind === CELL_TEXT) {
+      nonNumeric[slot]++;
+      if (nonNumericExamples[slot].length < EXAMPLES) nonNumericExamples[slot].push({ row, text: textOf(value, rules) ?? '' });
+    }
+  };
+
+  /** Writes a piece of column `target` into batch rows at…, `first` being the file row of batch row 0. */
+  const storePiece = (target: (typeof targets)[number], piece: ColumnPiece, at: number, first: number): void => {
+    const { levels, levelStart, presentLevel, indexes, dictionary, valueStart } = piece;
+    const rows = piece.rows;
+    if (target.label) {
+      if (indexes && dictionary) {
+        if (labelDictionary !== dictionary) {
+          labelDictionary = dictionary;
+          labelOfIndex = new Int32Array(dictionary.length).fill(-2);
+        }
+        let next = valueStart;
+        for (let i = 0; i < rows; i++) {
+          if (levels && levels[levelStart + i] !== presentLevel) {
+            labels[at + i] = -1;
+            continue;
+          }
+          const index = indexes[next++];
+          let id = labelOfIndex[index];
+          if (id === -2) id = labelOfIndex[index] = labelId(dictionary[index]);
+          labels[at + i] = id;
+        }
+      } else {
+        forEachValue(piece, at, (batchRow, value) => (labels[batchRow] = labelId(value)));
+      }
+    }
+    for (const slot of target.slots) {
+      const source = indexes ? dictionary : piece.values;
+      if (!levels && isNumberArray(source)) {
+        if (indexes) for (let i = 0; i < rows; i++) values[(at + i) * d + slot] = source[indexes[valueStart + i]];
+        else for (let i = 0; i < rows; i++) values[(at + i) * d + slot] = source[valueStart + i];
+        continue;
+      }
+      forEachValue(piece, at, (batchRow, value) => storeFeature(slot, batchRow, first + batchRow, value));
+    }
+  };
 
   const only = request.rows;
   let scanned = 0;
   let groupStart = 0;
   for (const group of opened.metadata.row_groups) {
-    const groupEnd = groupStart + Number(group.num_rows);
-    if (only && (groupEnd <= only.start || groupStart >= only.end)) {
+    const groupRows = Number(group.num_rows);
+    const groupEnd = groupStart + groupRows;
+    const from = only ? Math.max(groupStart, only.start) : groupStart;
+    const to = only ? Math.min(groupEnd, only.end) : groupEnd;
+    if (from >= to) {
       groupStart = groupEnd;
       continue;
     }
-    for (const [fullStart, fullEnd] of rowRanges(group, groupStart, new Set(needed), 8 * d + 4, tuning)) {
-      const rangeStart = only ? Math.max(fullStart, only.start) : fullStart;
-      const rangeEnd = only ? Math.min(fullEnd, only.end) : fullEnd;
-      if (rangeStart >= rangeEnd) continue;
-      const rows = rangeEnd - rangeStart;
-      scanned += rows;
-      if (columnLabels.length < rows) {
-        columnValues = features.map(() => new Float64Array(rows));
-        columnLabels = new Int32Array(rows);
-      }
-      if (!label) columnLabels.fill(-1, 0, rows);
-      for (const [k, column] of needed.entries()) {
-        const slots = features.flatMap((feature, slot) => (feature.name === column ? [slot] : []));
-        for (const slot of slots) columnValues[slot].fill(NaN, 0, rows);
-        // Labels are interned in row order, so ids follow the order of first appearance.
-        const store = (row: number, value: unknown): void => {
-          if (label?.name === column) columnLabels[row - rangeStart] = labelId(value);
-          for (const slot of slots) {
-            if (typeof value === 'number') {
-              columnValues[slot][row - rangeStart] = value;
-              continue;
-            }
-            columnValues[slot][row - rangeStart] = reader.valueOf(value);
-            if (reader.lostPrecision) lostPrecision[slot]++;
-            if (reader.lastKind === CELL_TEXT) {
-              nonNumeric[slot]++;
-              if (nonNumericExamples[slot].length < EXAMPLES) nonNumericExamples[slot].push({ row, text: textOf(value, rules) ?? '' });
-            }
-          }
-        };
-        const wholeGroup = rangeStart === groupStart && rangeEnd === groupStart + Number(group.num_rows);
-        const paged = wholeGroup && (await readFlatColumn(opened, name, group, column, (page) => storePage(page, groupStart, store, label?.name === column ? [] : slots.map((slot) => columnValues[slot]), rangeStart)));
-        if (!paged) forEachRow(await readColumnRows(opened, name, column, rangeStart, rangeEnd), rangeStart, rangeEnd, store);
-        progress.update(Math.round((source.size * (rangeStart + (rows * (k + 1)) / needed.length)) / Math.max(1, opened.rows)));
-      }
-      for (let batchStart = 0; batchStart < rows; batchStart += batchRows) {
-        const n = Math.min(batchRows, rows - batchStart);
-        for (let slot = 0; slot < d; slot++) {
-          const column = columnValues[slot];
-          for (let i = 0; i < n; i++) values[i * d + slot] = column[batchStart + i];
-        }
-        labels.set(columnLabels.subarray(batchStart, batchStart + n));
-        request.onBatch({ rows: n, firstRow: rangeStart + batchStart, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, labelTexts);
-      }
-      progress.update(Math.round((source.size * rangeEnd) / Math.max(1, opened.rows)));
+    const columns = targets.map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning) }));
+    // Rows of the group before a share's first row are read and dropped.
+    for (const { rows } of columns) for (let skipped = groupStart; skipped < from; skipped += batchRows) await rows.read(Math.min(batchRows, from - skipped), () => undefined);
+    for (let first = from; first < to; first += batchRows) {
+      const n = Math.min(batchRows, to - first);
+      if (d > 0) values.fill(NaN, 0, n * d);
+      if (!label) labels.fill(-1, 0, n);
+      for (const { target, rows } of columns) await rows.read(n, (piece, at) => storePiece(target, piece, at, first));
+      request.onBatch({ rows: n, firstRow: first, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, labelTexts);
+      scanned += n;
+      progress.update(Math.round((source.size * (first + n)) / Math.max(1, opened.rows)));
     }
-    groupStart += Number(group.num_rows);
+    groupStart = groupEnd;
   }
   progress.finish();
 

@@ -5,11 +5,12 @@
  */
 import { strict as assert } from 'node:assert';
 import { parquetWriteBuffer } from 'hyparquet-writer';
-import { readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { CancelledError, DataError } from '../../../src/core/errors';
 import { inspectTable, scanTable } from '../../../src/core/read/index';
-import { DEFAULT_PARQUET_TUNING, scanParquet } from '../../../src/core/read/parquet';
+import { DEFAULT_PARQUET_TUNING, scanParquet, type ParquetTuning } from '../../../src/core/read/parquet';
 import type { ScanSummary, TableInspection } from '../../../src/core/read/types';
 import { memorySource, type ByteSource, type Progress } from '../../../src/core/source';
 
@@ -36,11 +37,15 @@ function expectedFeature(value: number | string | boolean | null): number {
 
 const NUMERIC = ['vibration_rms', 'kurtosis', 'acoustic_db', 'impeller_rpm', 'run_hours', 'seal_ok'];
 
-async function scanAll(bytes: Uint8Array, name: string, inspection: TableInspection, featureNames: string[], sliceRows: number) {
+/** Every page decoded as it is read (not whole), from reads of 64 bytes: the streaming path and its window edges. */
+const STREAMED: Partial<ParquetTuning> = { streamPageBytes: 0, readBytes: 64 };
+
+async function scanAll(bytes: Uint8Array, name: string, inspection: TableInspection, featureNames: string[], tuning: Partial<ParquetTuning> = {}) {
   const index = (column: string): number => inspection.columns.findIndex((c) => c.name === column);
   const values: number[] = [];
   const labels: number[] = [];
   const firstRows: number[] = [];
+  const batchRows: number[] = [];
   let dictionary: readonly string[] = [];
   const summary: ScanSummary = await scanParquet(
     {
@@ -50,14 +55,15 @@ async function scanAll(bytes: Uint8Array, name: string, inspection: TableInspect
       onBatch: (batch, batchLabels) => {
         assert.equal(batch.lines, undefined);
         firstRows.push(batch.firstRow);
+        batchRows.push(batch.rows);
         values.push(...batch.values);
         labels.push(...batch.labels);
         dictionary = batchLabels;
       },
     },
-    { ...DEFAULT_PARQUET_TUNING, sliceRows, wholeGroupBytes: sliceRows < 100 ? 0 : DEFAULT_PARQUET_TUNING.wholeGroupBytes, batchRows: 16 },
+    { ...DEFAULT_PARQUET_TUNING, batchRows: 16, ...tuning },
   );
-  return { values, labels, firstRows, dictionary: dictionary.slice(), summary };
+  return { values, labels, firstRows, batchRows, dictionary: dictionary.slice(), summary };
 }
 
 describe('parquet', function () {
@@ -88,10 +94,10 @@ describe('parquet', function () {
         assert.equal(rms.missing, expected.columns.vibration_rms.filter((value) => value === null).length);
       });
 
-      for (const sliceRows of [37, 65_536]) {
-        it(`scans every value as the outside reader sees it (slices of ${sliceRows} rows)`, async () => {
+      for (const [how, tuning] of [['pages whole', {}], ['pages decoded as read', STREAMED]] as const) {
+        it(`scans every value as the outside reader sees it (${how})`, async () => {
           const inspection = await inspectTable(memorySource(`${fixture}.parquet`, bytes));
-          const read = await scanAll(bytes, `${fixture}.parquet`, inspection, features, sliceRows);
+          const read = await scanAll(bytes, `${fixture}.parquet`, inspection, features, tuning);
           assert.equal(read.summary.rows, expected.rows);
           assert.equal(read.values.length, expected.rows * features.length);
           for (let row = 0; row < expected.rows; row++) {
@@ -105,9 +111,10 @@ describe('parquet', function () {
           assert.deepEqual(read.dictionary, order);
           assert.deepEqual(read.labels, faults.map((fault) => (fault === null ? -1 : order.indexOf(fault))));
           assert.deepEqual(read.summary.labels, order);
-          for (let i = 1; i < read.firstRows.length; i++) assert.ok(read.firstRows[i] > read.firstRows[i - 1]);
-          // Batches of 16 rows restart at each slice: row 37 starts a batch only when the row group is sliced.
-          if (sliceRows === 37) assert.ok(read.firstRows.includes(37) && read.firstRows.includes(74), read.firstRows.join(' '));
+          // Batches of at most 16 rows, each starting where the last ended (a shorter one ends a row group).
+          assert.equal(read.firstRows[0], 0);
+          for (let i = 1; i < read.firstRows.length; i++) assert.equal(read.firstRows[i], read.firstRows[i - 1] + read.batchRows[i - 1]);
+          assert.ok(read.batchRows.every((rows) => rows > 0 && rows <= 16));
           const precision = read.summary.notes.find((note) => note.code === 'int64-precision');
           assert.deepEqual(precision?.columns, ['run_hours']);
           assert.match(precision!.message, /run_hours: 2 values/);
@@ -120,7 +127,7 @@ describe('parquet', function () {
   it('reads a DATE column used as a feature as non-numeric, with examples', async () => {
     const { bytes } = loadFixture('pumps-duckdb-snappy');
     const inspection = await inspectTable(memorySource('pumps.parquet', bytes));
-    const read = await scanAll(bytes, 'pumps.parquet', inspection, ['inspected_on'], 1000);
+    const read = await scanAll(bytes, 'pumps.parquet', inspection, ['inspected_on']);
     assert.equal(read.summary.nonNumeric[0], 300);
     assert.deepEqual(read.summary.nonNumericExamples[0][0], { row: 0, text: '2024-01-01T00:00:00.000Z' });
   });
@@ -213,13 +220,69 @@ describe('parquet', function () {
     const source = memorySource('pumps.parquet', bytes);
     const inspection = await inspectTable(source);
     const events: Progress[] = [];
-    await scanParquet({ source, inspection, plan: { label: 5, features: [0] }, onBatch: () => {}, control: { onProgress: (p) => events.push(p) } }, { ...DEFAULT_PARQUET_TUNING, sliceRows: 10, wholeGroupBytes: 0 });
+    await scanParquet({ source, inspection, plan: { label: 5, features: [0] }, onBatch: () => {}, control: { onProgress: (p) => events.push(p) } }, { ...DEFAULT_PARQUET_TUNING, batchRows: 10 });
     assert.ok(events.length > 5);
     assert.equal(events[events.length - 1].bytesRead, source.size);
     const controller = new AbortController();
     await assert.rejects(
-      scanParquet({ source, inspection, plan: { label: 5, features: [0] }, onBatch: () => controller.abort(), control: { signal: controller.signal } }, { ...DEFAULT_PARQUET_TUNING, sliceRows: 10 }),
+      scanParquet({ source, inspection, plan: { label: 5, features: [0] }, onBatch: () => controller.abort(), control: { signal: controller.signal } }, { ...DEFAULT_PARQUET_TUNING, batchRows: 10 }),
       CancelledError,
     );
   });
+});
+
+describe('parquet: one row group of large pages (DuckDB)', function () {
+  // DuckDB (npm @duckdb/node-api, a dev dependency) writes one data page per column chunk however
+  // many rows the group holds; these pages are decoded as they are read, a batch at a time.
+  this.timeout(120_000);
+  let folder: string;
+  before(() => {
+    folder = mkdtempSync(join(tmpdir(), 'scatterwise-parquet-'));
+  });
+  after(() => rmSync(folder, { recursive: true, force: true }));
+
+  const ROWS = 300_000;
+  const COLUMNS = ['repeating', 'scattered', 'counter', 'big', 'fault'];
+
+  for (const codec of ['snappy', 'uncompressed']) {
+    it(`reads every value as DuckDB reads it back, streamed or whole (${codec})`, async () => {
+      const { DuckDBInstance } = await import('@duckdb/node-api');
+      const connection = await (await DuckDBInstance.create(':memory:')).connect();
+      const path = join(folder, `large-${codec}.parquet`);
+      // repeating: few distinct values (dictionary, compressible: snappy copies); scattered: most
+      // values distinct, every 13th missing; counter: INTEGER NOT NULL (a required column).
+      await connection.run(`CREATE TABLE pumps (repeating DOUBLE, scattered DOUBLE, counter INTEGER NOT NULL, big BIGINT, fault VARCHAR)`);
+      await connection.run(
+        `INSERT INTO pumps SELECT (i % 997) * 0.25, CASE WHEN i % 13 = 0 THEN NULL ELSE (hash(i) % 100000007) / 7.0 END, i::INTEGER, i * 3, ` +
+          `CASE WHEN i % 101 = 0 THEN NULL ELSE ['healthy', 'cavitation', 'seal leak'][i % 3 + 1] END FROM range(${ROWS}) t(i)`,
+      );
+      await connection.run(`COPY pumps TO '${path}' (FORMAT parquet, COMPRESSION ${codec}, ROW_GROUP_SIZE 1000000)`);
+      const rows = (await connection.runAndReadAll(`SELECT ${COLUMNS.join(', ')} FROM read_parquet('${path}')`)).getRows();
+      connection.closeSync();
+      assert.equal(rows.length, ROWS);
+
+      const bytes = new Uint8Array(readFileSync(path));
+      const inspection = await inspectTable(memorySource('large.parquet', bytes));
+      const features = COLUMNS.slice(0, 4);
+      const streamed = await scanAll(bytes, 'large.parquet', inspection, features, { streamPageBytes: 0, readBytes: 1000, batchRows: 4096 });
+      const whole = await scanAll(bytes, 'large.parquet', inspection, features, { streamPageBytes: Infinity, batchRows: 4096 });
+      assert.equal(streamed.summary.rows, ROWS);
+      assert.equal(streamed.values.length, ROWS * features.length);
+      const faultIds = new Map(streamed.dictionary.map((fault, id) => [fault, id]));
+      for (let row = 0; row < ROWS; row++) {
+        features.forEach((name, slot) => {
+          const cell = rows[row][slot];
+          const want = cell === null ? NaN : Number(cell);
+          const got = streamed.values[row * features.length + slot];
+          if (!Object.is(got, want)) assert.fail(`${name} row ${row}: ${got} vs ${want}`);
+          if (!Object.is(whole.values[row * features.length + slot], got)) assert.fail(`${name} row ${row} read whole: ${whole.values[row * features.length + slot]} vs ${got}`);
+        });
+        const fault = rows[row][4];
+        const id = fault === null ? -1 : faultIds.get(String(fault));
+        if (streamed.labels[row] !== id || whole.labels[row] !== id) assert.fail(`fault row ${row}: ${streamed.labels[row]}, ${whole.labels[row]} vs ${id}`);
+      }
+      // First appearance: row 0 is missing (0 % 101), then rows 1, 2, 3.
+      assert.deepEqual(streamed.dictionary, ['cavitation', 'seal leak', 'healthy']);
+    });
+  }
 });

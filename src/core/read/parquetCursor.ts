@@ -1,0 +1,356 @@
+/**
+ * A flat column chunk read as a cursor: each `next(maxRows)` hands over the next rows as a piece
+ * (definition levels, and values or dictionary indexes), so the scan can advance every column of a
+ * row group in lockstep, a batch of rows at a time, whatever the size of the group or its pages.
+ *
+ * Bytes come from the ByteSource through a window of `readBytes`. A page up to `streamPageBytes`
+ * (compressed) is read and decoded whole, with hyparquet's published decoders
+ * (`hyparquet/src/*.js`); a larger one is decoded as it is read (parquetStream.ts) when it is a v1
+ * data page, uncompressed or snappy, of a column with definition levels 0 or 1, holding PLAIN
+ * numbers or dictionary indexes; else whole. A dictionary page is always whole: every index may
+ * point anywhere in it. So memory per column is its dictionary plus about two windows.
+ *
+ * Why not hyparquet's column reader: it passes every value of a nullable column through its
+ * nested-list assembly (assembleLists), which took about half the time of a scan (DuckDB output,
+ * whose columns are nullable), and it decodes a column chunk at once. Nested columns are left to it.
+ */
+import type { CompressionCodec, Compressors, DecodedArray, FileMetaData, SchemaElement } from 'hyparquet';
+import { parquetHeader } from 'hyparquet/src/column.js';
+import { convert, convertWithDictionary, DEFAULT_PARSERS } from 'hyparquet/src/convert.js';
+import { decompressPage, readDataPage, readDataPageV2 } from 'hyparquet/src/datapage.js';
+import { readRleBitPackedHybrid } from 'hyparquet/src/encoding.js';
+import { readPlain } from 'hyparquet/src/plain.js';
+import { getMaxDefinitionLevel, getSchemaPath, isFlatColumn } from 'hyparquet/src/schema.js';
+import type { ByteSource } from '../source';
+import { HybridStream, PlainPageBytes, SnappyPageBytes, SourceWindow, StreamDamaged, StreamFallback, type PageBytes } from './parquetStream';
+
+export interface CursorTuning {
+  /** Bytes read from the source at a time, per column. */
+  readBytes: number;
+  /** A data page larger than this (compressed) is decoded as it is read, when it can be. */
+  streamPageBytes: number;
+}
+
+/** Rows handed over by `next`: arrays are read from their start offsets and may be reused by the next call. */
+export interface ColumnPiece {
+  rows: number;
+  /** Definition level per row from levelStart, or null when every row of the piece has a value. */
+  levels: ArrayLike<number> | null;
+  levelStart: number;
+  /** The definition level of a present value. */
+  presentLevel: number;
+  /** The present values in row order from valueStart (converted: decimals, dates, strings); null when `indexes` is set. */
+  values: DecodedArray | null;
+  /** Dictionary indexes of the present values from valueStart, into `dictionary`. */
+  indexes: Int32Array | null;
+  dictionary: DecodedArray | null;
+  valueStart: number;
+}
+
+type RowGroup = FileMetaData['row_groups'][number];
+type Decoder = Parameters<typeof readDataPage>[2];
+type PageHeader = ReturnType<typeof parquetHeader>;
+
+interface WholePage {
+  rows: number;
+  rowAt: number;
+  valueAt: number;
+  levels: ArrayLike<number> | null;
+  values: DecodedArray | null;
+  indexes: Int32Array | null;
+}
+
+interface StreamedPage {
+  rows: number;
+  rowAt: number;
+  /** File offset of the page's (compressed) data and its header, to decode it whole after a StreamFallback. */
+  dataOffset: number;
+  header: PageHeader;
+  bytes: PageBytes;
+  levels: HybridStream | null;
+  indexes: HybridStream | null;
+}
+
+const NUMBER_ARRAYS = { DOUBLE: Float64Array, FLOAT: Float32Array, INT32: Int32Array, INT64: BigInt64Array } as const;
+type StreamedType = keyof typeof NUMBER_ARRAYS;
+
+/** Signed integers and floats, which hyparquet's `convert` leaves as they are stored (not unsigned, dates, decimals, times). */
+const SIGNED_INTEGERS = new Set([undefined, 'INT_8', 'INT_16', 'INT_32', 'INT_64']);
+function plainNumbers(element: SchemaElement): boolean {
+  const logical = element.logical_type;
+  return SIGNED_INTEGERS.has(element.converted_type) && (logical === undefined || (logical.type === 'INTEGER' && logical.isSigned));
+}
+
+/** Bytes over an array already in memory (the definition levels of a streamed page). */
+class MemoryBytes implements PageBytes {
+  position = 0;
+  constructor(readonly bytes: Uint8Array) {}
+  get end(): number {
+    return this.bytes.length;
+  }
+  get left(): number {
+    return this.bytes.length - this.position;
+  }
+  async ensure(n: number): Promise<void> {
+    if (n > this.left) throw new StreamDamaged('definition levels run past their section');
+  }
+}
+
+export class FlatColumnCursor {
+  private window: SourceWindow;
+  private dictionary: DecodedArray | null = null;
+  private whole: WholePage | null = null;
+  private streamed: StreamedPage | null = null;
+  private rowsDone = 0;
+  private levelBuffer = new Uint8Array(0);
+  private indexBuffer = new Int32Array(0);
+  private valueBuffer: Float64Array | Float32Array | Int32Array | BigInt64Array | null = null;
+
+  private constructor(
+    private readonly source: ByteSource,
+    private readonly decoder: Decoder & { codec: CompressionCodec; compressors: Compressors },
+    private readonly element: SchemaElement,
+    readonly presentLevel: number,
+    private readonly codec: CompressionCodec,
+    private readonly compressors: Compressors,
+    start: number,
+    private readonly chunkEnd: number,
+    readonly rows: number,
+    private readonly tuning: CursorTuning,
+  ) {
+    this.window = new SourceWindow(source, start, chunkEnd, tuning.readBytes);
+  }
+
+  /** A cursor over column `column` of `group`, or null when the column is not flat (nested, repeated) or lives in another file. */
+  static open(source: ByteSource, metadata: FileMetaData, group: RowGroup, column: string, compressors: Compressors, tuning: CursorTuning): FlatColumnCursor | null {
+    const chunk = group.columns.find((candidate) => candidate.meta_data?.path_in_schema.length === 1 && candidate.meta_data.path_in_schema[0] === column);
+    const meta = chunk?.meta_data;
+    if (chunk === undefined || meta === undefined || chunk.file_path !== undefined) return null;
+    const schemaPath = getSchemaPath(metadata.schema, [column]);
+    if (!isFlatColumn(schemaPath)) return null;
+    const element = schemaPath[schemaPath.length - 1].element;
+    const decoder = { pathInSchema: [column], type: meta.type, element, schemaPath, codec: meta.codec, parsers: DEFAULT_PARSERS, compressors, utf8: true };
+    const start = Number(meta.dictionary_page_offset || meta.data_page_offset);
+    const end = Math.min(source.size, start + Number(meta.total_compressed_size));
+    return new FlatColumnCursor(source, decoder, element, getMaxDefinitionLevel(schemaPath), meta.codec, compressors, start, end, Number(group.num_rows), tuning);
+  }
+
+  /** The next rows, at most maxRows and at least one while rows remain (throws when the data ends early). */
+  async next(maxRows: number): Promise<ColumnPiece> {
+    while (this.whole === null && this.streamed === null) await this.readPage();
+    const piece = this.whole ? this.nextWhole(this.whole, maxRows) : await this.nextStreamed(this.streamed!, maxRows);
+    this.rowsDone += piece.rows;
+    return piece;
+  }
+
+  private nextWhole(page: WholePage, maxRows: number): ColumnPiece {
+    const rows = Math.min(maxRows, page.rows - page.rowAt);
+    const piece: ColumnPiece = {
+      rows,
+      levels: page.levels,
+      levelStart: page.rowAt,
+      presentLevel: this.presentLevel,
+      values: page.values,
+      indexes: page.indexes,
+      dictionary: page.indexes ? this.dictionary : null,
+      valueStart: page.valueAt,
+    };
+    let present = rows;
+    if (page.levels) {
+      present = 0;
+      for (let i = page.rowAt; i < page.rowAt + rows; i++) if (page.levels[i] === this.presentLevel) present++;
+    }
+    page.rowAt += rows;
+    page.valueAt += present;
+    if (page.rowAt >= page.rows) this.whole = null;
+    return piece;
+  }
+
+  private async nextStreamed(page: StreamedPage, maxRows: number): Promise<ColumnPiece> {
+    const rows = Math.min(maxRows, page.rows - page.rowAt);
+    try {
+      let present = rows;
+      let levels: Uint8Array | null = null;
+      if (page.levels) {
+        if (this.levelBuffer.length < rows) this.levelBuffer = new Uint8Array(rows);
+        levels = this.levelBuffer;
+        await page.levels.read(rows, levels, 0);
+        present = 0;
+        for (let i = 0; i < rows; i++) present += levels[i];
+        if (present === rows) levels = null;
+      }
+      let values: ColumnPiece['values'] = null;
+      let indexes: Int32Array | null = null;
+      if (page.indexes) {
+        if (this.indexBuffer.length < present) this.indexBuffer = new Int32Array(Math.max(present, 1024));
+        indexes = this.indexBuffer;
+        await page.indexes.read(present, indexes, 0);
+        const size = this.dictionary?.length ?? 0;
+        for (let i = 0; i < present; i++) if (indexes[i] >= size) throw new StreamDamaged(`a dictionary index ${indexes[i]} beyond the ${size} entries`);
+      } else {
+        const Type = NUMBER_ARRAYS[this.decoder.type as StreamedType];
+        if (!(this.valueBuffer instanceof Type) || this.valueBuffer.length < present) this.valueBuffer = new Type(Math.max(present, 1024));
+        const width = Type.BYTES_PER_ELEMENT;
+        await page.bytes.ensure(present * width);
+        new Uint8Array(this.valueBuffer.buffer, 0, present * width).set(page.bytes.bytes.subarray(page.bytes.position, page.bytes.position + present * width));
+        page.bytes.position += present * width;
+        values = this.valueBuffer;
+      }
+      page.rowAt += rows;
+      if (page.rowAt >= page.rows) this.finishStreamed(page);
+      return { rows, levels, levelStart: 0, presentLevel: this.presentLevel, values, indexes, dictionary: indexes ? this.dictionary : null, valueStart: 0 };
+    } catch (error) {
+      if (!(error instanceof StreamFallback)) throw error;
+      // Decode the page whole from the file and go on from the same row.
+      const compressed = await readExactly(this.source, page.dataOffset, page.header.compressed_page_size);
+      const whole = this.decodeWhole(compressed, page.header);
+      this.streamed = null;
+      this.window = new SourceWindow(this.source, page.dataOffset + page.header.compressed_page_size, this.chunkEnd, this.tuning.readBytes);
+      this.whole = whole;
+      if (page.rowAt > 0) this.nextWhole(whole, page.rowAt);
+      return this.nextWhole(whole, maxRows);
+    }
+  }
+
+  private finishStreamed(page: StreamedPage): void {
+    this.streamed = null;
+    const pageEnd = page.dataOffset + page.header.compressed_page_size;
+    if (this.window.position !== pageEnd) this.window = new SourceWindow(this.source, pageEnd, this.chunkEnd, this.tuning.readBytes);
+  }
+
+  private async readHeader(): Promise<PageHeader> {
+    const window = this.window;
+    for (let want = 4096; ; want *= 4) {
+      await window.ensure(want);
+      const reader = { view: new DataView(window.buffer.buffer, window.buffer.byteOffset + window.start, window.available), offset: 0 };
+      try {
+        const header = parquetHeader(reader);
+        window.skip(reader.offset);
+        return header;
+      } catch (error) {
+        // A header cut off by the end of what is buffered: read more, unless there is no more.
+        if (window.available >= window.remaining) throw error;
+      }
+    }
+  }
+
+  private async readPage(): Promise<void> {
+    if (this.rowsDone >= this.rows) throw new StreamDamaged('read past the rows of the row group');
+    if (this.window.remaining <= 0) throw new StreamDamaged(`the column chunk ends after ${this.rowsDone} of its ${this.rows} rows`);
+    const header = await this.readHeader();
+    const dataOffset = this.window.position;
+    const size = header.compressed_page_size;
+    if (header.type === 'DICTIONARY_PAGE') {
+      const compressed = await this.window.take(size);
+      const page = decompressPage(compressed, Number(header.uncompressed_page_size), this.codec, this.compressors);
+      const reader = { view: new DataView(page.buffer, page.byteOffset, page.byteLength), offset: 0 };
+      this.dictionary = convert(readPlain(reader, this.decoder.type, header.dictionary_page_header?.num_values ?? 0, this.element.type_length), this.decoder);
+      return;
+    }
+    if (header.type !== 'DATA_PAGE' && header.type !== 'DATA_PAGE_V2') {
+      // Index pages carry no values.
+      await this.window.take(size);
+      return;
+    }
+    if (this.streamable(header, size)) {
+      await this.openStreamed(header, dataOffset);
+      return;
+    }
+    this.whole = this.decodeWhole(await this.window.take(size), header);
+  }
+
+  private streamable(header: PageHeader, size: number): boolean {
+    const data = header.data_page_header;
+    if (size <= this.tuning.streamPageBytes || header.type !== 'DATA_PAGE' || !data) return false;
+    if (this.codec !== 'UNCOMPRESSED' && this.codec !== 'SNAPPY') return false;
+    if (this.presentLevel > 1 || (this.presentLevel === 1 && data.definition_level_encoding !== 'RLE')) return false;
+    if (data.encoding === 'PLAIN_DICTIONARY' || data.encoding === 'RLE_DICTIONARY') return this.dictionary !== null;
+    return data.encoding === 'PLAIN' && this.decoder.type in NUMBER_ARRAYS && plainNumbers(this.element);
+  }
+
+  private async openStreamed(header: PageHeader, dataOffset: number): Promise<void> {
+    const data = header.data_page_header!;
+    const size = header.compressed_page_size;
+    const bytes: PageBytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(this.window, size, header.uncompressed_page_size) : new PlainPageBytes(this.window, size);
+    let levels: HybridStream | null = null;
+    if (this.presentLevel === 1) {
+      await bytes.ensure(4);
+      const at = bytes.position;
+      const length = (bytes.bytes[at] | (bytes.bytes[at + 1] << 8) | (bytes.bytes[at + 2] << 16)) + bytes.bytes[at + 3] * 2 ** 24;
+      bytes.position += 4;
+      await bytes.ensure(length);
+      const section = bytes.bytes.slice(bytes.position, bytes.position + length);
+      bytes.position += length;
+      levels = new HybridStream(new MemoryBytes(section), 1, length);
+    }
+    let indexes: HybridStream | null = null;
+    if (data.encoding !== 'PLAIN') {
+      await bytes.ensure(1);
+      const width = bytes.bytes[bytes.position++];
+      try {
+        indexes = new HybridStream(bytes, width, bytes.left);
+      } catch (error) {
+        if (!(error instanceof StreamFallback)) throw error;
+        this.window = new SourceWindow(this.source, dataOffset + size, this.chunkEnd, this.tuning.readBytes);
+        this.whole = this.decodeWhole(await readExactly(this.source, dataOffset, size), header);
+        return;
+      }
+    }
+    this.streamed = { rows: data.num_values, rowAt: 0, dataOffset, header, bytes, levels, indexes };
+  }
+
+  /** A data page decoded whole: the common flat v1 cases here, the rest by hyparquet. */
+  private decodeWhole(compressed: Uint8Array, header: PageHeader): WholePage {
+    const decoder = this.decoder;
+    if (header.type === 'DATA_PAGE_V2' && header.data_page_header_v2) {
+      const { definitionLevels, dataPage } = readDataPageV2(compressed, header, decoder);
+      const values = convertWithDictionary(dataPage, this.dictionary ?? undefined, header.data_page_header_v2.encoding, decoder);
+      return this.wholePage(header.data_page_header_v2.num_rows, definitionLevels, values, null);
+    }
+    const data = header.data_page_header;
+    if (!data) throw new StreamDamaged('a data page without its header');
+    const page = decompressPage(compressed, Number(header.uncompressed_page_size), this.codec, this.compressors);
+    const dictionaryIndexes = data.encoding === 'PLAIN_DICTIONARY' || data.encoding === 'RLE_DICTIONARY';
+    const handled = this.presentLevel <= 1 && (this.presentLevel === 0 || data.definition_level_encoding === 'RLE') && decoder.type !== 'BOOLEAN' && (data.encoding === 'PLAIN' || (dictionaryIndexes && this.dictionary !== null));
+    if (!handled) {
+      const { definitionLevels, dataPage } = readDataPage(page, data, decoder);
+      return this.wholePage(data.num_values, definitionLevels, convertWithDictionary(dataPage, this.dictionary ?? undefined, data.encoding, decoder), null);
+    }
+    const view = new DataView(page.buffer, page.byteOffset, page.byteLength);
+    const reader = { view, offset: 0 };
+    let levels: Uint8Array | null = null;
+    let present = data.num_values;
+    if (this.presentLevel === 1) {
+      levels = new Uint8Array(data.num_values);
+      readRleBitPackedHybrid(reader, 1, levels);
+      present = 0;
+      for (let i = 0; i < levels.length; i++) present += levels[i];
+      if (present === levels.length) levels = null;
+    }
+    if (data.encoding === 'PLAIN') return { rows: data.num_values, rowAt: 0, valueAt: 0, levels, values: convert(readPlain(reader, decoder.type, present, this.element.type_length), decoder), indexes: null };
+    const width = view.getUint8(reader.offset++);
+    const indexes = new Int32Array(present);
+    if (width) readRleBitPackedHybrid(reader, width, indexes, view.byteLength - reader.offset);
+    const size = this.dictionary?.length ?? 0;
+    for (let i = 0; i < present; i++) if (indexes[i] >= size) throw new StreamDamaged(`a dictionary index ${indexes[i]} beyond the ${size} entries`);
+    return { rows: data.num_values, rowAt: 0, valueAt: 0, levels, values: null, indexes };
+  }
+
+  private wholePage(rows: number, definitionLevels: ArrayLike<number> | undefined, values: DecodedArray, indexes: Int32Array | null): WholePage {
+    const levels = definitionLevels && definitionLevels.length > 0 ? definitionLevels : null;
+    return { rows, rowAt: 0, valueAt: 0, levels, values, indexes };
+  }
+}
+
+async function readExactly(source: ByteSource, offset: number, length: number): Promise<Uint8Array> {
+  const copy = new Uint8Array(length);
+  let filled = 0;
+  while (filled < length) {
+    const chunk = await source.read(offset + filled, length - filled);
+    if (chunk.length === 0) throw new StreamDamaged(`the file ends at byte ${offset + filled}, inside a page`);
+    const take = Math.min(chunk.length, length - filled);
+    copy.set(chunk.subarray(0, take), filled);
+    filled += take;
+  }
+  return copy;
+}
