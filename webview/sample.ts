@@ -3,6 +3,7 @@
  * built once per report, and the lookup from a data row to its place in the sample.
  */
 import type { FitReport } from '../src/core/types';
+import type { PackedSample } from '../src/shared/packedSample';
 
 /** The sample's columns as typed arrays, built once per report. */
 export interface SampleColumns {
@@ -42,9 +43,21 @@ export function rowLookup(rows: readonly number[]): (row: number) => number | un
   };
 }
 
-export function sampleColumns(report: FitReport): SampleColumns {
+/** `packed`: the same sample as it arrived in typed columns; its columns are used as they are. */
+export function sampleColumns(report: FitReport, packed?: PackedSample): SampleColumns {
   const { sample } = report;
   const count = sample.rows.length;
+  if (packed && packed.rows.length === count) {
+    const ldCount = Math.min(packed.ld.length, report.discriminant.eigenvalues.length);
+    const pcCount = Math.min(packed.pc.length, report.pca.explainedRatio.length, 2);
+    return {
+      count,
+      classIndex: packed.classIndex,
+      discriminant: packed.ld.slice(0, ldCount),
+      principal: packed.pc.slice(0, pcCount),
+      indexOfRow: rowLookup(sample.rows),
+    };
+  }
   const column = (rows: number[][], j: number): Float64Array => {
     const out = new Float64Array(count);
     for (let i = 0; i < count; i++) out[i] = rows[i]?.[j] ?? NaN;

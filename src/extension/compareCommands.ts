@@ -15,6 +15,7 @@ import { compareFile } from '../core/compare/index';
 import { DataError } from '../core/errors';
 import type { FitOptions } from '../core/types';
 import { isFromPanel, type ComparisonMessage, type EditableOptions, type ToPanel } from '../shared/messages';
+import { unpackReport } from '../shared/packedSample';
 import { fitBothSides } from './compareFits';
 import { fileAtRef, refChoices } from './compareGit';
 import type { FitWorkers } from './fitWorkers';
@@ -69,8 +70,8 @@ async function buildComparison(services: CompareServices, uri: vscode.Uri, ref: 
   const comparison = compareFile({
     base: { name: base.name, commit: base.commit },
     head: { name: project.relativePath ?? fileName(uri) },
-    baseReport: fits.base.report,
-    headReport: fits.head.report,
+    baseReport: unpackReport(fits.base.report),
+    headReport: unpackReport(fits.head.report),
     columns: { base: fits.base.columns, head: fits.head.columns },
     rules: [project.gates],
   });

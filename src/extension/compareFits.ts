@@ -5,12 +5,14 @@
  * the worker's explanation.
  */
 import { DataError } from '../core/errors';
-import type { FitOptions, FitReport } from '../core/types';
+import type { FitOptions } from '../core/types';
+import type { PanelReport } from '../shared/messages';
 import type { FitWorkers } from './fitWorkers';
 import type { FitRequest } from './workerProtocol';
 
 export interface WorkerFit {
-  report: FitReport;
+  /** With its plot sample packed, as the panel takes it. */
+  report: PanelReport;
   columns: string[];
 }
 

@@ -5,11 +5,12 @@
  */
 import { promises as fs } from 'node:fs';
 import * as vscode from 'vscode';
-import type { FitOptions, FitReport } from '../core/types';
+import type { FitOptions } from '../core/types';
 import {
   isFromPanel,
   type ColumnChoice,
   type ComparisonMessage,
+  type PanelReport,
   type EditableOptions,
   type ErrorMessage,
   type FromPanel,
@@ -310,7 +311,7 @@ export class FitSession implements vscode.Disposable {
     this.broadcast(this.latest.progress);
   }
 
-  private finish(report: FitReport, columns: ColumnChoice[]): void {
+  private finish(report: PanelReport, columns: ColumnChoice[]): void {
     this.latest = { final: this.resultMessage(report, columns) };
     this.broadcast(this.latest.final!);
   }
@@ -335,7 +336,7 @@ export class FitSession implements vscode.Disposable {
     this.broadcast(this.latest.error!);
   }
 
-  private resultMessage(report: FitReport, columns: ColumnChoice[]): ResultMessage {
+  private resultMessage(report: PanelReport, columns: ColumnChoice[]): ResultMessage {
     return { type: 'result', report, columns, options: { ...this.editableOptions(), label: report.label } };
   }
 

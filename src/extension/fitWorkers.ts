@@ -3,15 +3,14 @@
  * request; cancelling terminates the thread at once, which also closes the files it opened.
  */
 import { Worker } from 'node:worker_threads';
-import type { FitReport } from '../core/types';
-import type { ColumnChoice } from '../shared/messages';
+import type { ColumnChoice, PanelReport } from '../shared/messages';
 import type { FitFailure, FitRequest, FromWorker, WorkerTiming } from './workerProtocol';
 
 export interface FitJobListener {
   progress(phase: string, fraction: number): void;
   hashed(sha256: string): void;
   /** Called for a provisional report (report.provisional) and for the final one. */
-  result(report: FitReport, columns: ColumnChoice[], timing?: WorkerTiming): void;
+  result(report: PanelReport, columns: ColumnChoice[], timing?: WorkerTiming): void;
   failed(failure: FitFailure, columns?: ColumnChoice[]): void;
 }
 

@@ -4,11 +4,11 @@
  * already read, so a reopen need not read the file again; a changed stamp means a fresh run, whose
  * worker hashes the bytes and may still find the same content here.
  */
-import type { FitOptions, FitReport } from '../core/types';
-import type { ColumnChoice } from '../shared/messages';
+import type { FitOptions } from '../core/types';
+import type { ColumnChoice, PanelReport } from '../shared/messages';
 
 export interface CachedResult {
-  report: FitReport;
+  report: PanelReport;
   columns: ColumnChoice[];
 }
 

@@ -18,6 +18,7 @@ import { memorySource, type Progress } from '../core/source';
 import { openFileSource } from '../node/fileSource';
 import { createParallelScanner } from '../node/parallelScan';
 import type { ColumnChoice } from '../shared/messages';
+import { packReport, sampleBuffers } from '../shared/packedSample';
 import type { FitFailure, FitRequest, FromWorker } from './workerProtocol';
 
 /** Epoch milliseconds, comparable with the host's (see WorkerTiming). */
@@ -36,7 +37,8 @@ if (!port) throw new Error('worker.ts runs only as a worker thread');
 const PROVISIONAL_PLOT_BUDGET = 10_000;
 
 function post(message: FromWorker): void {
-  port!.postMessage(message);
+  // A report's sample buffers move to the host instead of being copied (the worker is done with them).
+  port!.postMessage(message, message.type === 'result' ? sampleBuffers(message.report.sample) : []);
 }
 
 /** SHA-256 of the file's bytes, read through its own read-only stream. */
@@ -99,7 +101,7 @@ async function run(request: FitRequest): Promise<void> {
           provisionalBytes: request.provisionalBytes,
           onProgress: progressPoster('first look'),
         });
-        post({ type: 'result', report: quick.report, columns: columnChoices(quick.inspection), timing: { started, analysisStarted, analysisEnded: clock() } });
+        post({ type: 'result', report: packReport(quick.report), columns: columnChoices(quick.inspection), timing: { started, analysisStarted, analysisEnded: clock() } });
       } catch (error) {
         // The first bytes may hold one class only, or end inside a row: the full pass decides.
         if (!(error instanceof DataError)) throw error;
@@ -115,7 +117,7 @@ async function run(request: FitRequest): Promise<void> {
     }
     const analysisEnded = clock();
     full.report.source.sha256 = await hashing;
-    post({ type: 'result', report: full.report, columns: columnChoices(full.inspection), timing: { started, analysisStarted, analysisEnded } });
+    post({ type: 'result', report: packReport(full.report), columns: columnChoices(full.inspection), timing: { started, analysisStarted, analysisEnded } });
   } catch (error) {
     post({ type: 'failed', failure: toFailure(error), columns: await columnsIfReadable(source, request) });
   } finally {

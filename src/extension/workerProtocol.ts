@@ -3,8 +3,8 @@
  * request in `workerData`, posts progress, the content hash, at most one provisional and one final
  * result (or an error), and then ends. The host stops it with `Worker.terminate()`.
  */
-import type { FitOptions, FitReport } from '../core/types';
-import type { ColumnChoice } from '../shared/messages';
+import type { FitOptions } from '../core/types';
+import type { ColumnChoice, PanelReport } from '../shared/messages';
 
 export interface FitRequest {
   /** Local file path; the worker opens it read-only. With `bytes`, only the name shown in messages. */
@@ -44,5 +44,6 @@ export interface WorkerTiming {
 export type FromWorker =
   | { type: 'progress'; phase: string; fraction: number }
   | { type: 'hashed'; sha256: string }
-  | { type: 'result'; report: FitReport; columns: ColumnChoice[]; timing?: WorkerTiming }
+  /** The report's plot sample packed, its buffers transferred (src/shared/packedSample.ts). */
+  | { type: 'result'; report: PanelReport; columns: ColumnChoice[]; timing?: WorkerTiming }
   | { type: 'failed'; failure: FitFailure; columns?: ColumnChoice[] };

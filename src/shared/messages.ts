@@ -3,7 +3,10 @@
  * check what they receive with the guards below, since a webview message is untrusted input.
  * Protocol: the panel posts `ready` once loaded; only then does the host post anything.
  */
-import type { FitOptions, FitReport } from '../core/types';
+import type { FitOptions } from '../core/types';
+import { isPackedSample, type PanelReport } from './packedSample';
+
+export type { PackedSample, PanelReport } from './packedSample';
 
 /** Settings the panel needs to draw (from the `scatterwise.*` configuration). */
 export interface PanelSettings {
@@ -35,7 +38,8 @@ export interface ProgressMessage {
 }
 export interface ResultMessage {
   type: 'result';
-  report: FitReport;
+  /** The report with its plot sample packed into typed arrays (packedSample.ts). */
+  report: PanelReport;
   columns: ColumnChoice[];
   options: EditableOptions;
 }
@@ -52,8 +56,8 @@ export interface ErrorMessage {
 export interface ComparisonMessage {
   type: 'comparison';
   baseName: string;
-  base: FitReport;
-  head: FitReport;
+  base: PanelReport;
+  head: PanelReport;
   /** Notable changes in words, most important first. */
   changes: string[];
   /** The gates `scatterwise compare` would check for this file (config or defaults), with their outcome. */
@@ -130,7 +134,9 @@ export function isFromPanel(v: unknown): v is FromPanel {
   }
 }
 
-/** Checks a message from the host (shape only; the report is our own type). */
+const isReport = (v: unknown): boolean => isRecord(v) && isPackedSample(v.sample);
+
+/** Checks a message from the host (shape only, and that plot samples are packed; the report is our own type). */
 export function isToPanel(v: unknown): v is ToPanel {
   if (!isRecord(v) || !isString(v.type)) return false;
   switch (v.type) {
@@ -139,11 +145,11 @@ export function isToPanel(v: unknown): v is ToPanel {
     case 'progress':
       return isString(v.phase) && typeof v.fraction === 'number';
     case 'result':
-      return isRecord(v.report) && Array.isArray(v.columns) && isEditableOptions(v.options);
+      return isReport(v.report) && Array.isArray(v.columns) && isEditableOptions(v.options);
     case 'error':
       return isString(v.message) && isString(v.code);
     case 'comparison':
-      return isString(v.baseName) && isRecord(v.base) && isRecord(v.head) && isStringArray(v.changes);
+      return isString(v.baseName) && isReport(v.base) && isReport(v.head) && isStringArray(v.changes);
     default:
       return false;
   }

@@ -16,6 +16,7 @@ import { datasetFor, parseProjectConfig } from '../../src/core/config/index';
 import { memorySource } from '../../src/core/source';
 import type { FitReport } from '../../src/core/types';
 import type { ComparisonMessage, ToPanel } from '../../src/shared/messages';
+import { unpackReport } from '../../src/shared/packedSample';
 import { git, sampleTable, withLeakingColumn, withRowsRemoved } from '../core/compareRepository';
 import { closeAllEditors, nextMessage, openAndWait, scatterwise, screenshot, waitUntil } from './helpers';
 
@@ -74,8 +75,8 @@ describe('compare with HEAD and save roles (real host)', function () {
     const comparison = await nextMessage(api, dataUri, isComparison, 180_000, skip);
 
     assert.equal(comparison.baseName, 'HEAD:data/pump-faults.csv');
-    assertSameFit(comparison.base, await analyzeText('HEAD:data/pump-faults.csv', committed), 'base');
-    assertSameFit(comparison.head, await analyzeText('pump-faults.csv', modified), 'head');
+    assertSameFit(unpackReport(comparison.base), await analyzeText('HEAD:data/pump-faults.csv', committed), 'base');
+    assertSameFit(unpackReport(comparison.head), await analyzeText('pump-faults.csv', modified), 'head');
     assert.ok(comparison.head.features.includes('repair_ticket') && !comparison.base.features.includes('repair_ticket'));
 
     const changes = comparison.changes.join('\n');

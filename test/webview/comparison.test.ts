@@ -12,6 +12,7 @@ import { compareFile, compareReports, figureRows } from '../../src/core/compare/
 import { memorySource } from '../../src/core/source';
 import type { FitReport } from '../../src/core/types';
 import type { ComparisonMessage } from '../../src/shared/messages';
+import { packReport, unpackReport } from '../../src/shared/packedSample';
 import { CLASS_COLOURS } from '../../webview/palette';
 import { sampleTable, withLeakingColumn, withRelabelledClass, withRowsRemoved } from '../core/compareRepository';
 import { SCREENSHOTS, usePanelBrowser } from './browserSuite';
@@ -30,8 +31,8 @@ function comparisonMessage(baseName: string, base: FitReport, head: FitReport): 
   return {
     type: 'comparison',
     baseName,
-    base,
-    head,
+    base: packReport(base),
+    head: packReport(head),
     changes: comparison.changes.map((c) => c.text),
     gates: comparison.gates.outcomes.map((o) => ({ rule: o.rule, passed: o.passed, detail: o.detail })),
   };
@@ -39,7 +40,8 @@ function comparisonMessage(baseName: string, base: FitReport, head: FitReport): 
 
 async function showComparison(page: Page, message: ComparisonMessage): Promise<void> {
   await send(page, { type: 'init', fileName: 'pump-faults.csv', settings: { plotBudget: 50_000 } });
-  await send(page, { type: 'result', report: message.head, columns: columnsOf(message.head), options: optionsOf(message.head) });
+  const head = unpackReport(message.head);
+  await send(page, { type: 'result', report: message.head, columns: columnsOf(head), options: optionsOf(head) });
   await send(page, message);
   await page.waitForSelector('.comparison');
 }

@@ -15,6 +15,7 @@ import { chromium, type Browser, type Page } from 'playwright-core';
 import { buildPanelHtml } from '../../src/shared/panelHtml';
 import type { FitReport } from '../../src/core/types';
 import type { ColumnChoice, EditableOptions, ToPanel } from '../../src/shared/messages';
+import { packReport } from '../../src/shared/packedSample';
 import { THEMES, type ThemeName } from './themes';
 
 // Code passed to page.evaluate runs in the browser; the Node type-check has no DOM library, so the
@@ -143,10 +144,25 @@ export async function applyTheme(page: Page, name: ThemeName): Promise<void> {
   }, theme);
 }
 
-/** Delivers a host message to the panel as VS Code does (a window message event). */
+/**
+ * Delivers a host message to the panel as VS Code does (a window message event, whose data is a
+ * structured clone: typed arrays arrive as typed arrays of the same kind).
+ */
 export async function send(page: Page, message: ToPanel): Promise<void> {
-  // As text: Playwright's structured argument passing is slow for the large arrays of a plot sample.
-  await page.evaluate((text: string) => window.postMessage(JSON.parse(text), '*'), JSON.stringify(message));
+  // As text, typed arrays in base64: Playwright's structured argument passing is slow for large arrays.
+  const text = JSON.stringify(message, (_key, value: unknown) =>
+    ArrayBuffer.isView(value) ? { $typedArray: value.constructor.name, base64: Buffer.from(value.buffer, value.byteOffset, value.byteLength).toString('base64') } : value,
+  );
+  await page.evaluate((json: string) => {
+    const revive = (_key: string, value: any): unknown => {
+      if (typeof value !== 'object' || value === null || typeof value.$typedArray !== 'string') return value;
+      const binary = atob(value.base64);
+      const bytes = new Uint8Array(binary.length);
+      for (let i = 0; i < binary.length; i++) bytes[i] = binary.charCodeAt(i);
+      return new window[value.$typedArray](bytes.buffer);
+    };
+    window.postMessage(JSON.parse(json, revive), '*');
+  }, text);
 }
 
 export async function posted(page: Page): Promise<Record<string, unknown>[]> {
@@ -182,7 +198,7 @@ export function optionsOf(report: FitReport): EditableOptions {
 /** Sends init and result for a report, as the host does after `ready`. */
 export async function showReport(page: Page, report: FitReport, fileName = report.source.name): Promise<void> {
   await send(page, { type: 'init', fileName, settings: { plotBudget: report.options.plotBudget } });
-  await send(page, { type: 'result', report, columns: columnsOf(report), options: optionsOf(report) });
+  await send(page, { type: 'result', report: packReport(report), columns: columnsOf(report), options: optionsOf(report) });
   await page.waitForSelector('.verdict-sentence');
 }
 

@@ -7,6 +7,7 @@
 import assert from 'node:assert/strict';
 import type { Page } from 'playwright-core';
 import { isFromPanel, type FromPanel } from '../../src/shared/messages';
+import { packReport } from '../../src/shared/packedSample';
 import { CLASS_COLOURS } from '../../webview/palette';
 import { usePanelBrowser } from './browserSuite';
 import { applyTheme, columnsOf, posted, readFixture, send, showReport, storedState } from './harness';
@@ -135,7 +136,7 @@ describe('panel interaction', function () {
     // The host answers with a result fitted with those options: they are no longer pending edits.
     assert.ok(((await storedState(page)) as { roleEdits: unknown }).roleEdits, 'the edits are kept until refitted');
     const refitted = { ...report, solver: 'shrinkage' as const, options: { ...report.options, solver: 'shrinkage' as const, priors: 'uniform' as const, cv: 'kfold:5' as const, missing: 'drop-columns' as const } };
-    await send(page, { type: 'result', report: refitted, columns: columnsOf(report), options: message.options });
+    await send(page, { type: 'result', report: packReport(refitted), columns: columnsOf(report), options: message.options });
     await page.waitForSelector('.verdict-sentence');
     assert.equal(((await storedState(page)) as { roleEdits: unknown }).roleEdits, null);
     await page.click('[data-tab="columns"]');

@@ -12,6 +12,7 @@ import type { FitReport } from '../../src/core/types';
 import { CLASS_COLOURS } from '../../webview/palette';
 import { SCREENSHOTS, usePanelBrowser } from './browserSuite';
 import { applyTheme, columnsOf, optionsOf, posted, readFixture, send, showReport } from './harness';
+import { packReport } from '../../src/shared/packedSample';
 import { countColours, waitForDrawing } from './pixels';
 
 declare const document: any;
@@ -259,7 +260,7 @@ describe('panel rendering', function () {
     const { page } = await panels.open();
     const base: FitReport = { ...report, accuracy: { ...report.accuracy, training: 0.5 } };
     await send(page, { type: 'init', fileName: 'pump-faults.csv', settings: { plotBudget: 50_000 } });
-    await send(page, { type: 'comparison', baseName: 'HEAD', base, head: report, changes: ['Training accuracy rose from 50.0%.'] });
+    await send(page, { type: 'comparison', baseName: 'HEAD', base: packReport(base), head: packReport(report), changes: ['Training accuracy rose from 50.0%.'] });
     await page.waitForSelector('.comparison');
     assert.equal((await page.textContent('.comparison .changes li'))?.trim(), 'Training accuracy rose from 50.0%.');
     const rows = await tableText(page, 'table.comparison-table');

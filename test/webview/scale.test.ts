@@ -34,13 +34,19 @@ async function postGrownReport(page: Page, points: number): Promise<number> {
         h ^= h >>> 16;
         return ((h >>> 0) / 2 ** 32 - 0.5) * 0.6;
       };
+      // Packed as the host posts it (src/shared/packedSample.ts): one typed array per column.
+      const ldCount = sample.ld[0].length;
+      const pcCount = sample.pc[0].length;
       grown.report.sample = {
         total: points,
-        rows: Array.from({ length: points }, (_, i) => i),
-        classIndex: Array.from({ length: points }, (_, i) => sample.classIndex[i % n]),
-        ld: Array.from({ length: points }, (_, i) => sample.ld[i % n].map((v: number, j: number) => v + shift(4 * i + j))),
-        pc: Array.from({ length: points }, (_, i) => sample.pc[i % n].map((v: number, j: number) => v + shift(4 * i + 2 + j) * 30)),
-        topFeatures: { names: sample.topFeatures.names, values: Array.from({ length: points }, (_, i) => sample.topFeatures.values[i % n]) },
+        rows: Float64Array.from({ length: points }, (_, i) => i),
+        classIndex: Int32Array.from({ length: points }, (_, i) => sample.classIndex[i % n]),
+        ld: Array.from({ length: ldCount }, (_, j) => Float64Array.from({ length: points }, (_, i) => sample.ld[i % n][j] + shift(4 * i + j))),
+        pc: Array.from({ length: pcCount }, (_, j) => Float64Array.from({ length: points }, (_, i) => sample.pc[i % n][j] + shift(4 * i + 2 + j) * 30)),
+        topFeatures: {
+          names: sample.topFeatures.names,
+          values: sample.topFeatures.names.map((_: string, f: number) => Float64Array.from({ length: points }, (_, i) => sample.topFeatures.values[i % n][f])),
+        },
       };
       grown.report.options.plotBudget = points;
       grown.report.misclassified = [];

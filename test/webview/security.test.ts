@@ -11,6 +11,7 @@ import { join } from 'node:path';
 import type { FitReport } from '../../src/core/types';
 import { usePanelBrowser } from './browserSuite';
 import { applyTheme, columnsOf, optionsOf, posted, readFixture, REPOSITORY, send, violations } from './harness';
+import { packReport } from '../../src/shared/packedSample';
 
 declare const document: any;
 declare const window: any;
@@ -53,7 +54,7 @@ describe('panel safety', function () {
     await applyTheme(page, 'dark');
     const { report, names } = hostileReport(readFixture('pump-faults.json'));
     await send(page, { type: 'init', fileName: '<img src=x onerror=alert(6)>.csv', settings: { plotBudget: 50_000 } });
-    await send(page, { type: 'result', report, columns: columnsOf(report), options: optionsOf(report) });
+    await send(page, { type: 'result', report: packReport(report), columns: columnsOf(report), options: optionsOf(report) });
     await page.waitForSelector('.verdict-sentence');
     for (const tab of ['projections', 'features', 'classes', 'statistics', 'findings', 'columns']) {
       await page.click(`[data-tab="${tab}"]`);

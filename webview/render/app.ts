@@ -5,12 +5,16 @@
  */
 import type { FitReport } from '../../src/core/types';
 import type { ColumnChoice, ComparisonMessage, EditableOptions, ErrorMessage, PanelSettings, ProgressMessage, ToPanel } from '../../src/shared/messages';
+import { unpackReport, type PackedSample } from '../../src/shared/packedSample';
 import { button, clear, element } from '../dom';
 import type { StateStore } from '../state';
 import type { HostConnection } from '../vscodeApi';
 import { renderComparison } from './comparison';
 import { renderReport, type RenderedReport } from './report';
 import { errorView, progressStrip } from './status';
+
+/** A comparison as the panel keeps it: both reports with their plot samples unpacked. */
+export type ShownComparison = Omit<ComparisonMessage, 'base' | 'head'> & { base: FitReport; head: FitReport };
 
 /** `folder/pump-faults.csv` → `pump-faults`, reduced to characters safe in any file name. */
 export function fileStem(name: string): string {
@@ -29,7 +33,9 @@ export class PanelApp {
   private fileName = '';
   private settings: PanelSettings | null = null;
   private report: FitReport | null = null;
-  private comparison: ComparisonMessage | null = null;
+  /** The result's sample in typed columns, as it arrived (for the plots). */
+  private packedSample: PackedSample | undefined;
+  private comparison: ShownComparison | null = null;
   private error: ErrorMessage | null = null;
   private columns: readonly ColumnChoice[] = [];
   private options: EditableOptions | null = null;
@@ -55,7 +61,9 @@ export class PanelApp {
         this.showProgress(message);
         break;
       case 'result':
-        this.report = message.report;
+        // The sample arrives packed in typed arrays (cheap to post and clone); the panel's code reads rows.
+        this.report = unpackReport(message.report);
+        this.packedSample = message.report.sample;
         this.columns = message.columns;
         this.options = message.options;
         // Edits that this result was fitted with are no longer pending.
@@ -73,8 +81,9 @@ export class PanelApp {
         this.draw();
         break;
       case 'comparison':
-        this.comparison = message;
-        this.report = message.head;
+        this.comparison = { ...message, base: unpackReport(message.base), head: unpackReport(message.head) };
+        this.report = this.comparison.head;
+        this.packedSample = message.head.sample;
         this.error = null;
         this.draw();
         break;
@@ -105,6 +114,7 @@ export class PanelApp {
       fileStem: stem,
       columns: this.columns,
       options: this.options ?? { ...this.report.options, label: this.report.label, features: this.report.features },
+      packedSample: this.packedSample,
     });
     this.rendered = comparison ? { element: rendered.element, dispose: () => {
       comparison.dispose();

@@ -6,14 +6,14 @@
  */
 import { classRows, compareReports, figureRows } from '../../src/core/compare/index';
 import { verdict } from '../../src/core/format/verdict';
-import type { ComparisonMessage } from '../../src/shared/messages';
+import type { ShownComparison } from './app';
 import { element, section } from '../dom';
 import { dataTable } from '../tables/table';
 import { comparisonProjections, type ComparisonPlotContext } from './comparisonPlots';
 
 export type ComparisonContext = ComparisonPlotContext;
 
-function gatesBlock(message: ComparisonMessage): HTMLElement | null {
+function gatesBlock(message: ShownComparison): HTMLElement | null {
   if (!message.gates || message.gates.length === 0) return null;
   const failed = message.gates.filter((g) => !g.passed);
   return element('div', { className: failed.length > 0 ? 'comparison-gates gates-failed' : 'comparison-gates gates-passed' }, [
@@ -27,7 +27,7 @@ function gatesBlock(message: ComparisonMessage): HTMLElement | null {
 }
 
 /** The comparison, with a `dispose` that stops its plots; without a context, the plots are left out. */
-export function renderComparison(message: ComparisonMessage, context?: ComparisonContext): { element: HTMLElement; dispose: () => void } {
+export function renderComparison(message: ShownComparison, context?: ComparisonContext): { element: HTMLElement; dispose: () => void } {
   const deltas = compareReports(message.base, message.head);
   const figures = figureRows(message.base, message.head, deltas);
   const classes = classRows(deltas);
@@ -80,6 +80,6 @@ export function renderComparison(message: ComparisonMessage, context?: Compariso
 }
 
 /** The comparison as an element only (no plots without a context); prefer `renderComparison`, whose `dispose` stops the plots. */
-export function comparisonSection(message: ComparisonMessage, context?: ComparisonContext): HTMLElement {
+export function comparisonSection(message: ShownComparison, context?: ComparisonContext): HTMLElement {
   return renderComparison(message, context).element;
 }

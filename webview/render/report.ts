@@ -17,6 +17,7 @@ import { findingsSection } from '../tables/findings';
 import { statisticsSection } from '../tables/statistics';
 import { ColumnMarks } from './marks';
 import { projectionsSection } from './projections';
+import type { PackedSample } from '../../src/shared/packedSample';
 import { sampleColumns } from '../sample';
 import { tabs, type Tabs } from './tabs';
 import { verdictBlock } from './verdict';
@@ -28,6 +29,8 @@ export interface ReportContext {
   fileStem: string;
   columns: readonly ColumnChoice[];
   options: EditableOptions;
+  /** The sample as it arrived, in typed columns: the plots draw from these without copying. */
+  packedSample?: PackedSample;
 }
 
 export interface RenderedReport {
@@ -39,7 +42,7 @@ export function renderReport(report: FitReport, context: ReportContext): Rendere
   const { store, post } = context;
   const hub = new HighlightHub();
   const marks = new ColumnMarks();
-  const columns = sampleColumns(report);
+  const columns = sampleColumns(report, context.packedSample);
   const disposers: (() => void)[] = [];
   let tabControl: Tabs | null = null;
 

@@ -16,6 +16,7 @@ import { tableMoments } from '../../core/tableMoments';
 import type { FitOptions, FitReport } from '../../core/types';
 import { openFileSource } from '../../node/fileSource';
 import type { EditableOptions } from '../../shared/messages';
+import { unpackReport } from '../../shared/packedSample';
 import type { FitWorkers } from '../fitWorkers';
 import { readSettings } from '../settings';
 
@@ -51,7 +52,7 @@ function fitInWorker(workers: FitWorkers, path: string, options: Partial<FitOpti
         progress: () => undefined,
         hashed: () => undefined,
         result: (report) => {
-          if (!report.provisional) resolve(report);
+          if (!report.provisional) resolve(unpackReport(report));
         },
         failed: (failure) => reject(new DataError(failure.code, failure.message, failure.where ?? {}, failure.hint)),
       },
