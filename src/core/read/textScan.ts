@@ -45,6 +45,9 @@ const LABEL_NEW = -2;
  */
 let spareBuffer: Uint8Array | null = null;
 
+/** The batch arrays of a finished scan, kept for the next in the same way (0.6 MiB for 20 features). */
+let spareBatch: { values: Float64Array; labels: Int32Array; lines: Int32Array } | null = null;
+
 export async function scanDelimitedText(request: ScanRequest, tuning: TextTuning = DEFAULT_TEXT_TUNING): Promise<ScanSummary> {
   const scanner = new DelimitedTextScanner(request, tuning);
   return scanner.run();
@@ -129,9 +132,14 @@ class DelimitedTextScanner {
     this.plainNumbers = this.rules.syntax.thousandsSeparator < 0 && !this.rules.missing.tokens.some((token) => this.readsAsNumber(token));
 
     const batchRows = Math.max(1, tuning.batchRows);
-    this.values = new Float64Array(batchRows * this.featureCount);
-    this.labels = new Int32Array(batchRows);
-    this.lines = new Int32Array(batchRows);
+    if (spareBatch && spareBatch.labels.length === batchRows && spareBatch.values.length === batchRows * this.featureCount) {
+      ({ values: this.values, labels: this.labels, lines: this.lines } = spareBatch);
+      spareBatch = null;
+    } else {
+      this.values = new Float64Array(batchRows * this.featureCount);
+      this.labels = new Int32Array(batchRows);
+      this.lines = new Int32Array(batchRows);
+    }
     this.pendingText = new Int32Array(3 * Math.max(1, this.featureCount));
     this.tally = new ScanTally(this.file, this.columnNames, this.featureCount);
 
@@ -153,6 +161,7 @@ class DelimitedTextScanner {
       return await this.scan();
     } finally {
       if (this.buffer.length === Math.max(16, this.tuning.chunkBytes) + 1) spareBuffer = this.buffer;
+      spareBatch = { values: this.values, labels: this.labels, lines: this.lines };
     }
   }
 
