@@ -118,7 +118,8 @@ export async function inspectDelimitedText(
     }
   }
   const parsedEnd = parsedRecords === records.ends.length ? cut : records.ends[parsedRecords - 1];
-  const text = new TextDecoder('utf-8').decode(head.subarray(start, parsedEnd));
+  // The parsed records as bytes (what a TextDecoder would give: one more leading BOM is dropped).
+  const text = head.subarray(start + (hasUtf8Bom(head.subarray(start, parsedEnd)) ? UTF8_BOM_LENGTH : 0), parsedEnd);
 
   // Dialect.
   const delimiter = options.delimiter ?? (format === 'tsv' ? '\t' : sniffDelimiter(head, records.starts, records.ends, ',', options.decimalComma === true));
@@ -162,7 +163,7 @@ export async function inspectDelimitedText(
  * The head's records. When csv-parse rejects a later record, the error is raised again with the
  * first record's cells as column names (unless the caller said there is no header).
  */
-function parseHead(text: string, head: Uint8Array, start: number, records: HeadRecords, dialect: CsvDialect, file: string, header: boolean | undefined): string[][] {
+function parseHead(text: Uint8Array, head: Uint8Array, start: number, records: HeadRecords, dialect: CsvDialect, file: string, header: boolean | undefined): string[][] {
   try {
     return parseCsvRecords(text, dialect, file, records.lines);
   } catch (error) {
