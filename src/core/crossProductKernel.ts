@@ -1,18 +1,28 @@
 /**
  * The blocked rank-k update at the heart of the moments, S += Yᵀ Y over a block of rows, in
  * WebAssembly with 128-bit SIMD where the engine has it (Node ≥ 16, current browsers), else in
- * plain JavaScript (linalg.crossProductUpdate). Same shapes and layout either way:
+ * plain JavaScript. Two layouts:
+ *
+ *  - createScatterKernel (the moments, momentsAccumulator.ts): the block row-major, S's 4 × 4
+ *    tiles held in registers while the block's rows stream past; with it, in the same module, S·v
+ *    from the upper triangle and the flush's per-element passes (shiftRows, centreRows). At
+ *    d = 1000 the update runs near (some 90% of) the two-lane multiply-plus-add peak (no FMA in
+ *    WebAssembly SIMD without relaxed SIMD, which Node 20 has only behind a flag).
+ *  - createCrossProductKernel (the k-fold parts, foldModels.ts): the block transposed,
  *
  *   S  d × d, row-major; only the upper triangle (j ≥ i) is updated and meaningful
  *   Y  the block transposed, d × stride: entry (i, t) at i·stride + t, the first `rows` columns used
  *
+ *    (JavaScript fallback linalg.crossProductUpdate).
+ *
  * Each kernel owns its memory and hands out Float64Array views of it (`scatter`, `block`), which
- * the caller fills and reads in place: nothing is copied per update. The WebAssembly function
- * computes two rows × four columns of S at a time, with eight two-lane accumulators running over
- * the block two rows at a time (S[i][j] = Σ_t Y[i][t]·Y[j][t]: Y's rows are contiguous in t), so
- * every pair of loads feeds eight multiply-adds. The module (a few hundred bytes) is assembled
- * below, instruction by instruction, from the WebAssembly binary format (core specification,
- * "Binary Format"; SIMD opcodes from the fixed-width SIMD proposal, merged in WebAssembly 2.0).
+ * the caller fills and reads in place: nothing is copied per update. The transposed kernel's
+ * WebAssembly function computes two rows × four columns of S at a time, with eight two-lane
+ * accumulators running over the block two rows at a time (S[i][j] = Σ_t Y[i][t]·Y[j][t]: Y's rows
+ * are contiguous in t), so every pair of loads feeds eight multiply-adds. The modules (a few
+ * hundred bytes each) are assembled below, instruction by instruction, from the WebAssembly binary
+ * format (core specification, "Binary Format"; SIMD opcodes from the fixed-width SIMD proposal,
+ * merged in WebAssembly 2.0).
  */
 import { crossProductUpdate } from './linalg';
 
@@ -247,17 +257,90 @@ function multiplyUpperBody(size: number): number[] {
   return code;
 }
 
+const f64x2Sub = [0xfd, 0xf1, 0x01];
+const f64x2Pmin = [0xfd, 0xf6, 0x01];
+const f64x2Pmax = [0xfd, 0xf7, 0x01];
+
+/** Local `base` + local `offset`, the address of an element pair. */
+const at = (base: number, offset: number): number[] => [...get(base), ...get(offset), ...add];
+
+// shiftRows(x, rows, shift, min, max, sums): row by row, min/max updated, x − shift stored, added to sums.
+const [SX, SROWS, SSHIFT, SMIN, SMAX, SSUMS] = [0, 1, 2, 3, 4, 5];
+const [SP, SP_END, SI] = [6, 7, 8];
+const SV = 9;
+
+function shiftRowsBody(size: number): number[] {
+  const rowBytes = size * 8;
+  const code: number[] = [];
+  code.push(...get(SX), ...set(SP), ...get(SROWS), ...i32(rowBytes), ...mul, ...get(SX), ...add, ...set(SP_END));
+  code.push(...block, ...loop, ...get(SP), ...get(SP_END), ...geU, ...brIf(1));
+  code.push(...i32(0), ...set(SI));
+  code.push(...block, ...loop, ...get(SI), ...i32(rowBytes), ...geU, ...brIf(1));
+  code.push(...at(SP, SI), ...v128Load(0), ...set(SV));
+  // pmin(m, v) = v < m ? v : m and pmax(m, v) = m < v ? v : m: a NaN leaves the extreme alone, as `if (x < lo) lo = x` does.
+  code.push(...at(SMIN, SI), ...at(SMIN, SI), ...v128Load(0), ...get(SV), ...f64x2Pmin, ...v128Store(0));
+  code.push(...at(SMAX, SI), ...at(SMAX, SI), ...v128Load(0), ...get(SV), ...f64x2Pmax, ...v128Store(0));
+  code.push(...get(SV), ...at(SSHIFT, SI), ...v128Load(0), ...f64x2Sub, ...set(SV));
+  code.push(...at(SP, SI), ...get(SV), ...v128Store(0));
+  code.push(...at(SSUMS, SI), ...at(SSUMS, SI), ...v128Load(0), ...get(SV), ...f64x2Add, ...v128Store(0));
+  code.push(...get(SI), ...i32(16), ...add, ...set(SI), ...br(0), ...end, ...end);
+  code.push(...get(SP), ...i32(rowBytes), ...add, ...set(SP), ...br(0), ...end, ...end);
+  return code;
+}
+
+// centreRows(x, rows, mean, delta, rowNorms, projections, cubic, timesDelta).
+const [CX, CROWS, CMEAN, CDELTA, CNORMS, CPROJ, CCUBIC, CTIMES] = [0, 1, 2, 3, 4, 5, 6, 7];
+const [CP, CP_END, CI, CT] = [8, 9, 10, 11];
+const [CZ, CN2, CPR2] = [12, 13, 14];
+const [CNORM, CPROJECTION] = [15, 16];
+
+/**
+ * Row by row: z = x − mean stored, ‖z‖² and zᵀδ (two lanes, added at the row's end) into
+ * rowNorms[t] and projections[t]; then the row again (still in cache): cubic += ‖z‖² z and
+ * timesDelta += (zᵀδ) z.
+ */
+function centreRowsBody(size: number): number[] {
+  const rowBytes = size * 8;
+  const code: number[] = [];
+  code.push(...get(CX), ...set(CP), ...get(CROWS), ...i32(rowBytes), ...mul, ...get(CX), ...add, ...set(CP_END));
+  code.push(...i32(0), ...set(CT));
+  code.push(...block, ...loop, ...get(CP), ...get(CP_END), ...geU, ...brIf(1));
+  code.push(...v128Zero, ...set(CN2), ...v128Zero, ...set(CPR2), ...i32(0), ...set(CI));
+  code.push(...block, ...loop, ...get(CI), ...i32(rowBytes), ...geU, ...brIf(1));
+  code.push(...at(CP, CI), ...v128Load(0), ...at(CMEAN, CI), ...v128Load(0), ...f64x2Sub, ...set(CZ));
+  code.push(...at(CP, CI), ...get(CZ), ...v128Store(0));
+  code.push(...get(CN2), ...get(CZ), ...get(CZ), ...f64x2Mul, ...f64x2Add, ...set(CN2));
+  code.push(...get(CPR2), ...get(CZ), ...at(CDELTA, CI), ...v128Load(0), ...f64x2Mul, ...f64x2Add, ...set(CPR2));
+  code.push(...get(CI), ...i32(16), ...add, ...set(CI), ...br(0), ...end, ...end);
+  code.push(...get(CN2), ...lane(0), ...get(CN2), ...lane(1), ...f64Add, ...set(CNORM));
+  code.push(...get(CPR2), ...lane(0), ...get(CPR2), ...lane(1), ...f64Add, ...set(CPROJECTION));
+  code.push(...at(CNORMS, CT), ...get(CNORM), ...f64Store(0), ...at(CPROJ, CT), ...get(CPROJECTION), ...f64Store(0));
+  code.push(...get(CNORM), ...f64x2Splat, ...set(CN2), ...get(CPROJECTION), ...f64x2Splat, ...set(CPR2), ...i32(0), ...set(CI));
+  code.push(...block, ...loop, ...get(CI), ...i32(rowBytes), ...geU, ...brIf(1));
+  code.push(...at(CP, CI), ...v128Load(0), ...set(CZ));
+  code.push(...at(CCUBIC, CI), ...at(CCUBIC, CI), ...v128Load(0), ...get(CN2), ...get(CZ), ...f64x2Mul, ...f64x2Add, ...v128Store(0));
+  code.push(...at(CTIMES, CI), ...at(CTIMES, CI), ...v128Load(0), ...get(CPR2), ...get(CZ), ...f64x2Mul, ...f64x2Add, ...v128Store(0));
+  code.push(...get(CI), ...i32(16), ...add, ...set(CI), ...br(0), ...end, ...end);
+  code.push(...get(CP), ...i32(rowBytes), ...add, ...set(CP), ...get(CT), ...i32(8), ...add, ...set(CT), ...br(0), ...end, ...end);
+  return code;
+}
+
 function rowModuleBytes(size: number): Uint8Array {
-  const type = section(1, vector([[0x60, ...vector([[I32], [I32], [I32]]), 0]]));
+  const params = (count: number): number[] => [0x60, ...vector(Array.from({ length: count }, () => [I32])), 0];
+  const type = section(1, vector([params(3), params(6), params(8)]));
   const imports = section(2, vector([[...utf8('env'), ...utf8('memory'), 0x02, 0x00, 0x01]]));
-  const functions = section(3, vector([[0], [0]]));
+  const functions = section(3, vector([[0], [0], [1], [2]]));
   const exports = section(7, vector([
     [...utf8('update'), 0x00, 0],
     [...utf8('multiplyUpper'), 0x00, 1],
+    [...utf8('shiftRows'), 0x00, 2],
+    [...utf8('centreRows'), 0x00, 3],
   ]));
   const update = [...vector([[...unsignedLeb(7), I32], [...unsignedLeb(11), V128]]), ...rowUpdateBody(size), ...end];
   const multiply = [...vector([[...unsignedLeb(3), I32], [...unsignedLeb(3), F64], [...unsignedLeb(3), V128]]), ...multiplyUpperBody(size), ...end];
-  const code = section(10, vector([[...unsignedLeb(update.length), ...update], [...unsignedLeb(multiply.length), ...multiply]]));
+  const shift = [...vector([[...unsignedLeb(3), I32], [...unsignedLeb(1), V128]]), ...shiftRowsBody(size), ...end];
+  const centre = [...vector([[...unsignedLeb(4), I32], [...unsignedLeb(3), V128], [...unsignedLeb(2), F64]]), ...centreRowsBody(size), ...end];
+  const code = section(10, vector([update, multiply, shift, centre].map((fn) => [...unsignedLeb(fn.length), ...fn])));
   return Uint8Array.from([0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, ...type, ...imports, ...functions, ...exports, ...code]);
 }
 
@@ -373,7 +456,9 @@ export function simdAvailable(): boolean {
  *          update a few of them)
  *   block  capacity × size: block row t at t·size; columns d..size−1 must stay 0, so the padding
  *          rows and columns of S stay 0
- *   vector, product  size each: product += S·vector from S's upper triangle (multiplyUpper)
+ *   vector, product  size each: product = S·vector from S's upper triangle (multiplyUpper)
+ *   the flush's vectors (size each, padding 0 unless said) and per-row values (capacity each),
+ *          read and written by shiftRows and centreRows
  *
  * All of them are views of the kernel's own memory, filled and read in place.
  */
@@ -385,11 +470,33 @@ export interface ScatterKernel {
   readonly block: Float64Array;
   readonly vector: Float64Array;
   readonly product: Float64Array;
+  readonly shift: Float64Array;
+  /** Start at ±Infinity (the caller fills them); their padding entries are meaningless. */
+  readonly min: Float64Array;
+  readonly max: Float64Array;
+  readonly sums: Float64Array;
+  readonly mean: Float64Array;
+  readonly delta: Float64Array;
+  readonly cubic: Float64Array;
+  readonly timesDelta: Float64Array;
+  readonly rowNorms: Float64Array;
+  readonly projections: Float64Array;
   /** S += Xᵀ X over the first `rows` block rows (rows ≤ capacity). */
   update(rows: number): void;
   /** product = S·vector (product is overwritten), from the upper triangle. */
   multiplyUpper(): void;
+  /** Row by row over the first `rows` block rows: min, max updated; x − shift stored; sums = Σ (x − shift) (overwritten). */
+  shiftRows(rows: number): void;
+  /**
+   * Row by row: z = x − mean stored; rowNorms[t] = ‖z_t‖², projections[t] = z_tᵀ delta; cubic =
+   * Σ ‖z_t‖² z_t and timesDelta = Σ (z_tᵀ delta) z_t (both overwritten).
+   */
+  centreRows(rows: number): void;
 }
+
+/** The vectors of `size` and of `capacity` doubles after S, the block, vector and product, in this order. */
+const SIZE_VECTORS = ['shift', 'min', 'max', 'sums', 'mean', 'delta', 'cubic', 'timesDelta'] as const;
+const ROW_VECTORS = ['rowNorms', 'projections'] as const;
 
 const rowModules = new Map<number, WasmModule | null>();
 
@@ -408,14 +515,27 @@ function rowModule(size: number): WasmModule | null {
   return module;
 }
 
+type Views = Record<(typeof SIZE_VECTORS)[number] | (typeof ROW_VECTORS)[number], Float64Array>;
+
 class SimdScatterKernel implements ScatterKernel {
   readonly scatter: Float64Array;
   readonly block: Float64Array;
   readonly vector: Float64Array;
   readonly product: Float64Array;
+  readonly shift: Float64Array;
+  readonly min: Float64Array;
+  readonly max: Float64Array;
+  readonly sums: Float64Array;
+  readonly mean: Float64Array;
+  readonly delta: Float64Array;
+  readonly cubic: Float64Array;
+  readonly timesDelta: Float64Array;
+  readonly rowNorms: Float64Array;
+  readonly projections: Float64Array;
   private readonly run: (s: number, x: number, rows: number) => void;
   private readonly multiply: (s: number, v: number, out: number) => void;
-  private readonly offsets: { block: number; vector: number; product: number };
+  private readonly shiftRun: (x: number, rows: number, shift: number, min: number, max: number, sums: number) => void;
+  private readonly centreRun: (x: number, rows: number, mean: number, delta: number, norms: number, projections: number, cubic: number, timesDelta: number) => void;
 
   constructor(
     module: WasmModule,
@@ -424,28 +544,47 @@ class SimdScatterKernel implements ScatterKernel {
     readonly capacity: number,
   ) {
     const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly!;
-    const block = size * size * 8;
-    const vectorAt = block + capacity * size * 8;
+    const blockAt = size * size * 8;
+    const vectorAt = blockAt + capacity * size * 8;
     const productAt = vectorAt + size * 8;
-    const bytes = productAt + size * 8;
+    const vectorsAt = productAt + size * 8;
+    const rowsAt = vectorsAt + SIZE_VECTORS.length * size * 8;
+    const bytes = rowsAt + ROW_VECTORS.length * capacity * 8;
     const memory = new wasm.Memory({ initial: Math.max(1, Math.ceil(bytes / PAGE)) });
-    const instance = new wasm.Instance(module, { env: { memory } });
-    this.run = instance.exports.update as (s: number, x: number, rows: number) => void;
-    this.multiply = instance.exports.multiplyUpper as (s: number, v: number, out: number) => void;
-    this.offsets = { block, vector: vectorAt, product: productAt };
+    const { exports } = new wasm.Instance(module, { env: { memory } });
+    this.run = exports.update as SimdScatterKernel['run'];
+    this.multiply = exports.multiplyUpper as SimdScatterKernel['multiply'];
+    this.shiftRun = exports.shiftRows as SimdScatterKernel['shiftRun'];
+    this.centreRun = exports.centreRows as SimdScatterKernel['centreRun'];
     this.scatter = new Float64Array(memory.buffer, 0, size * size);
-    this.block = new Float64Array(memory.buffer, block, capacity * size);
+    this.block = new Float64Array(memory.buffer, blockAt, capacity * size);
     this.vector = new Float64Array(memory.buffer, vectorAt, size);
     this.product = new Float64Array(memory.buffer, productAt, size);
+    const views = {} as Views;
+    SIZE_VECTORS.forEach((name, k) => (views[name] = new Float64Array(memory.buffer, vectorsAt + k * size * 8, size)));
+    ROW_VECTORS.forEach((name, k) => (views[name] = new Float64Array(memory.buffer, rowsAt + k * capacity * 8, capacity)));
+    ({ shift: this.shift, min: this.min, max: this.max, sums: this.sums, mean: this.mean, delta: this.delta } = views);
+    ({ cubic: this.cubic, timesDelta: this.timesDelta, rowNorms: this.rowNorms, projections: this.projections } = views);
   }
 
   update(rows: number): void {
-    if (rows > 0) this.run(0, this.offsets.block, rows);
+    if (rows > 0) this.run(0, this.block.byteOffset, rows);
   }
 
   multiplyUpper(): void {
     this.product.fill(0);
-    this.multiply(0, this.offsets.vector, this.offsets.product);
+    this.multiply(0, this.vector.byteOffset, this.product.byteOffset);
+  }
+
+  shiftRows(rows: number): void {
+    this.sums.fill(0);
+    this.shiftRun(this.block.byteOffset, rows, this.shift.byteOffset, this.min.byteOffset, this.max.byteOffset, this.sums.byteOffset);
+  }
+
+  centreRows(rows: number): void {
+    this.cubic.fill(0);
+    this.timesDelta.fill(0);
+    this.centreRun(this.block.byteOffset, rows, this.mean.byteOffset, this.delta.byteOffset, this.rowNorms.byteOffset, this.projections.byteOffset, this.cubic.byteOffset, this.timesDelta.byteOffset);
   }
 }
 
@@ -454,6 +593,17 @@ class PlainScatterKernel implements ScatterKernel {
   readonly block: Float64Array;
   readonly vector: Float64Array;
   readonly product: Float64Array;
+
+  readonly shift: Float64Array;
+  readonly min: Float64Array;
+  readonly max: Float64Array;
+  readonly sums: Float64Array;
+  readonly mean: Float64Array;
+  readonly delta: Float64Array;
+  readonly cubic: Float64Array;
+  readonly timesDelta: Float64Array;
+  readonly rowNorms: Float64Array;
+  readonly projections: Float64Array;
 
   constructor(
     readonly d: number,
@@ -464,6 +614,48 @@ class PlainScatterKernel implements ScatterKernel {
     this.block = new Float64Array(capacity * size);
     this.vector = new Float64Array(size);
     this.product = new Float64Array(size);
+    [this.shift, this.min, this.max, this.sums, this.mean, this.delta, this.cubic, this.timesDelta] = SIZE_VECTORS.map(() => new Float64Array(size));
+    [this.rowNorms, this.projections] = ROW_VECTORS.map(() => new Float64Array(capacity));
+  }
+
+  shiftRows(rows: number): void {
+    const { d, size, block: y, shift, min, max, sums } = this;
+    sums.fill(0);
+    for (let t = 0; t < rows; t++) {
+      const row = t * size;
+      for (let i = 0; i < d; i++) {
+        const x = y[row + i];
+        if (x < min[i]) min[i] = x;
+        if (x > max[i]) max[i] = x;
+        const v = x - shift[i];
+        y[row + i] = v;
+        sums[i] += v;
+      }
+    }
+  }
+
+  centreRows(rows: number): void {
+    const { d, size, block: y, mean, delta, rowNorms, projections, cubic, timesDelta } = this;
+    cubic.fill(0);
+    timesDelta.fill(0);
+    for (let t = 0; t < rows; t++) {
+      const row = t * size;
+      let norm = 0;
+      let projection = 0;
+      for (let i = 0; i < d; i++) {
+        const z = y[row + i] - mean[i];
+        y[row + i] = z;
+        norm += z * z;
+        projection += z * delta[i];
+      }
+      for (let i = 0; i < d; i++) {
+        const z = y[row + i];
+        cubic[i] += norm * z;
+        timesDelta[i] += projection * z;
+      }
+      rowNorms[t] = norm;
+      projections[t] = projection;
+    }
   }
 
   update(rows: number): void {

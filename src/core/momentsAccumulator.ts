@@ -39,12 +39,6 @@ class ClassAccumulator {
   readonly kernel: ScatterKernel;
   readonly block: Float64Array;
   readonly size: number;
-  private readonly blockMean: Float64Array;
-  private readonly blockCubic: Float64Array;
-  private readonly delta: Float64Array;
-  private readonly blockTimesDelta: Float64Array;
-  private readonly rowNorms: Float64Array;
-  private readonly projections: Float64Array;
 
   constructor(
     readonly label: string,
@@ -59,15 +53,10 @@ class ClassAccumulator {
     this.block = this.kernel.block;
     this.size = this.kernel.size;
     this.cubic = new Float64Array(d);
-    this.min = new Float64Array(d).fill(Infinity);
-    this.max = new Float64Array(d).fill(-Infinity);
-    this.shift = new Float64Array(d);
-    this.blockMean = new Float64Array(d);
-    this.blockCubic = new Float64Array(d);
-    this.delta = new Float64Array(d);
-    this.blockTimesDelta = new Float64Array(d);
-    this.rowNorms = new Float64Array(blockRows);
-    this.projections = new Float64Array(blockRows);
+    // The flush's vectors live in the kernel's memory too: its shiftRows and centreRows use them.
+    this.min = this.kernel.min.fill(Infinity);
+    this.max = this.kernel.max.fill(-Infinity);
+    this.shift = this.kernel.shift;
   }
 
   flush(): void {
@@ -76,22 +65,24 @@ class ClassAccumulator {
     const d = this.d;
     const size = this.size;
     const y = this.block;
-    const { rowNorms, projections, delta, blockMean, blockCubic, blockTimesDelta, min, max, shift } = this;
+    const kernel = this.kernel;
+    const { rowNorms, projections, delta, sums, mean: blockMean, cubic: blockCubic, timesDelta: blockTimesDelta, shift } = kernel;
     const first = this.count === 0;
     if (first) {
       for (let i = 0; i < d; i++) shift[i] = y[i];
     }
-    // Pass 1, row by row: extremes, shift, block sums (in blockMean).
-    shiftRows(y, size, d, nb, shift, min, max, blockMean);
+    // Pass 1, row by row: extremes, shift, block sums.
+    kernel.shiftRows(nb);
     for (let i = 0; i < d; i++) {
-      if (!Number.isFinite(blockMean[i])) {
+      if (!Number.isFinite(sums[i])) {
         throw new DataError('non-finite-value', `Class "${this.label}" has a value that is not a finite number in column "${this.features[i]}".`, { column: this.features[i] });
       }
-      blockMean[i] /= nb;
+      blockMean[i] = sums[i] / nb;
       delta[i] = blockMean[i] - this.mean[i];
     }
-    // Pass 2, row by row: centre on the block mean (δ = block mean − running mean).
-    centreRows(y, size, d, nb, blockMean, delta, rowNorms, projections, blockCubic, blockTimesDelta);
+    // Pass 2, row by row: centre on the block mean (δ = block mean − running mean), with the row
+    // norms ‖z_t‖², the projections z_tᵀδ, the block cubic Σ‖z‖² z and S_B δ = Σ z (zᵀδ).
+    kernel.centreRows(nb);
     let blockQuartic = 0;
     let blockTrace = 0;
     let blockDelta = 0; // δᵀ S_B δ
@@ -103,9 +94,9 @@ class ClassAccumulator {
     }
     if (first) {
       // The running mean was 0 (relative to the shift), so δ is the block mean.
-      this.mean.set(delta);
+      this.mean.set(delta.subarray(0, d));
       this.kernel.update(nb);
-      this.cubic.set(blockCubic);
+      this.cubic.set(blockCubic.subarray(0, d));
       this.quartic = blockQuartic;
       this.scatterTrace = blockTrace;
       this.count = nb;
@@ -160,71 +151,11 @@ class ClassAccumulator {
       count: this.count,
       mean,
       scatter: symmetricFromUpper(this.kernel.scatter, this.size, d),
-      min: this.min.slice(),
-      max: this.max.slice(),
+      min: this.min.slice(0, d),
+      max: this.max.slice(0, d),
       cubic: this.cubic.slice(),
       quartic: this.quartic,
     };
-  }
-}
-
-/*
- * The per-element passes of a flush, each its own function with one hot loop nest: the engine
- * optimises such a function whole, where one long method optimised in the middle of a loop kept
- * deoptimising at the parts it had not yet seen run.
- */
-
-/** Row by row: the extremes, the rows shifted (x − shift), their column sums added to `sums`. */
-function shiftRows(y: Float64Array, size: number, d: number, rows: number, shift: Float64Array, min: Float64Array, max: Float64Array, sums: Float64Array): void {
-  sums.fill(0);
-  for (let t = 0; t < rows; t++) {
-    const row = t * size;
-    for (let i = 0; i < d; i++) {
-      const x = y[row + i];
-      if (x < min[i]) min[i] = x;
-      if (x > max[i]) max[i] = x;
-      const v = x - shift[i];
-      y[row + i] = v;
-      sums[i] += v;
-    }
-  }
-}
-
-/**
- * Row by row: z = y − mean in place, the row norm ‖z_t‖² and the projection z_tᵀδ; then, the row
- * still in cache, its share of the block cubic Σ‖z‖² z and of S_B δ = Σ z (zᵀδ).
- */
-function centreRows(
-  y: Float64Array,
-  size: number,
-  d: number,
-  rows: number,
-  mean: Float64Array,
-  delta: Float64Array,
-  rowNorms: Float64Array,
-  projections: Float64Array,
-  cubic: Float64Array,
-  timesDelta: Float64Array,
-): void {
-  cubic.fill(0);
-  timesDelta.fill(0);
-  for (let t = 0; t < rows; t++) {
-    const row = t * size;
-    let norm = 0;
-    let projection = 0;
-    for (let i = 0; i < d; i++) {
-      const z = y[row + i] - mean[i];
-      y[row + i] = z;
-      norm += z * z;
-      projection += z * delta[i];
-    }
-    for (let i = 0; i < d; i++) {
-      const z = y[row + i];
-      cubic[i] += norm * z;
-      timesDelta[i] += projection * z;
-    }
-    rowNorms[t] = norm;
-    projections[t] = projection;
   }
 }
 

@@ -100,4 +100,41 @@ describe('row-major scatter kernel (S += XᵀX, S·v from the upper triangle)', 
       }
     });
   }
+
+  it('shiftRows and centreRows: WebAssembly SIMD equals the plain JavaScript passes (padding columns left at zero)', () => {
+    const draw = uniform(13);
+    for (const d of [1, 3, 4, 6, 13]) {
+      for (const rows of [1, 2, 5, 64]) {
+        const [simd, plain] = [createScatterKernel(d, 64), createScatterKernel(d, 64, true)];
+        for (const kernel of [simd, plain]) {
+          kernel.min.fill(Infinity);
+          kernel.max.fill(-Infinity);
+        }
+        const values = Array.from({ length: rows * d }, () => draw() * 4 - 2);
+        const vectors = Array.from({ length: 3 * d }, () => draw() - 0.5);
+        for (const kernel of [simd, plain]) {
+          for (let t = 0; t < rows; t++) for (let i = 0; i < d; i++) kernel.block[t * kernel.size + i] = values[t * d + i]!;
+          for (let i = 0; i < d; i++) [kernel.shift[i], kernel.mean[i], kernel.delta[i]] = [vectors[i]!, vectors[d + i]!, vectors[2 * d + i]!];
+          kernel.shiftRows(rows);
+          kernel.centreRows(rows);
+        }
+        const close = (a: number, b: number, scale: number): boolean => Math.abs(a - b) <= 8 * d * rows * Number.EPSILON * Math.max(1, scale);
+        for (let i = 0; i < d; i++) {
+          assert.equal(simd.min[i], plain.min[i]);
+          assert.equal(simd.max[i], plain.max[i]);
+          assert.equal(simd.sums[i], plain.sums[i], `d=${d} rows=${rows}: sums[${i}]`);
+          assert.ok(close(simd.cubic[i]!, plain.cubic[i]!, Math.abs(plain.cubic[i]!)), `d=${d} rows=${rows}: cubic[${i}] ${simd.cubic[i]} vs ${plain.cubic[i]}`);
+          assert.ok(close(simd.timesDelta[i]!, plain.timesDelta[i]!, Math.abs(plain.timesDelta[i]!)), `d=${d} rows=${rows}: timesDelta[${i}]`);
+        }
+        for (let t = 0; t < rows; t++) {
+          assert.ok(close(simd.rowNorms[t]!, plain.rowNorms[t]!, plain.rowNorms[t]!), `d=${d} rows=${rows}: rowNorms[${t}]`);
+          assert.ok(close(simd.projections[t]!, plain.projections[t]!, Math.abs(plain.projections[t]!)), `d=${d} rows=${rows}: projections[${t}]`);
+          for (let i = 0; i < simd.size; i++) {
+            if (i < d) assert.equal(simd.block[t * simd.size + i], plain.block[t * plain.size + i]);
+            else assert.equal(simd.block[t * simd.size + i], 0, `d=${d}: padding column ${i} written`);
+          }
+        }
+      }
+    }
+  });
 });
