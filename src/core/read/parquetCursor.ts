@@ -29,6 +29,8 @@ export interface CursorTuning {
   readBytes: number;
   /** A data page larger than this (compressed) is decoded as it is read, when it can be. */
   streamPageBytes: number;
+  /** Snappy output kept for copies while streaming (default 64 KiB; tests set less to force the whole-page fallback). */
+  snappyHistoryBytes?: number;
 }
 
 /** Rows handed over by `next`: arrays are read from their start offsets and may be reused by the next call. */
@@ -271,32 +273,31 @@ export class FlatColumnCursor {
   private async openStreamed(header: PageHeader, dataOffset: number): Promise<void> {
     const data = header.data_page_header!;
     const size = header.compressed_page_size;
-    const bytes: PageBytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(this.window, size, header.uncompressed_page_size) : new PlainPageBytes(this.window, size);
-    let levels: HybridStream | null = null;
-    if (this.presentLevel === 1) {
-      await bytes.ensure(4);
-      const at = bytes.position;
-      const length = (bytes.bytes[at] | (bytes.bytes[at + 1] << 8) | (bytes.bytes[at + 2] << 16)) + bytes.bytes[at + 3] * 2 ** 24;
-      bytes.position += 4;
-      await bytes.ensure(length);
-      const section = bytes.bytes.slice(bytes.position, bytes.position + length);
-      bytes.position += length;
-      levels = new HybridStream(new MemoryBytes(section), 1, length);
-    }
-    let indexes: HybridStream | null = null;
-    if (data.encoding !== 'PLAIN') {
-      await bytes.ensure(1);
-      const width = bytes.bytes[bytes.position++];
-      try {
-        indexes = new HybridStream(bytes, width, bytes.left);
-      } catch (error) {
-        if (!(error instanceof StreamFallback)) throw error;
-        this.window = new SourceWindow(this.source, dataOffset + size, this.chunkEnd, this.tuning.readBytes);
-        this.whole = this.decodeWhole(await readExactly(this.source, dataOffset, size), header);
-        return;
+    try {
+      const bytes: PageBytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(this.window, size, header.uncompressed_page_size, this.tuning.snappyHistoryBytes) : new PlainPageBytes(this.window, size);
+      let levels: HybridStream | null = null;
+      if (this.presentLevel === 1) {
+        await bytes.ensure(4);
+        const at = bytes.position;
+        const length = (bytes.bytes[at] | (bytes.bytes[at + 1] << 8) | (bytes.bytes[at + 2] << 16)) + bytes.bytes[at + 3] * 2 ** 24;
+        bytes.position += 4;
+        await bytes.ensure(length);
+        const section = bytes.bytes.slice(bytes.position, bytes.position + length);
+        bytes.position += length;
+        levels = new HybridStream(new MemoryBytes(section), 1, length);
       }
+      let indexes: HybridStream | null = null;
+      if (data.encoding !== 'PLAIN') {
+        await bytes.ensure(1);
+        const width = bytes.bytes[bytes.position++];
+        indexes = new HybridStream(bytes, width, bytes.left);
+      }
+      this.streamed = { rows: data.num_values, rowAt: 0, dataOffset, header, bytes, levels, indexes };
+    } catch (error) {
+      if (!(error instanceof StreamFallback)) throw error;
+      this.window = new SourceWindow(this.source, dataOffset + size, this.chunkEnd, this.tuning.readBytes);
+      this.whole = this.decodeWhole(await readExactly(this.source, dataOffset, size), header);
     }
-    this.streamed = { rows: data.num_values, rowAt: 0, dataOffset, header, bytes, levels, indexes };
   }
 
   /** A data page decoded whole: the common flat v1 cases here, the rest by hyparquet. */

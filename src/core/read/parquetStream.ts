@@ -156,7 +156,7 @@ const LONGEST_COPY = 64;
 
 /** A snappy-compressed page decompressed as it is read. */
 export class SnappyPageBytes implements PageBytes {
-  bytes = new Uint8Array(HISTORY + 2 * OUTPUT_CHUNK);
+  bytes: Uint8Array;
   position = 0;
   end = 0;
   private inputLeft: number;
@@ -169,12 +169,15 @@ export class SnappyPageBytes implements PageBytes {
     private readonly window: SourceWindow,
     compressedSize: number,
     private readonly size: number,
+    private readonly history: number,
   ) {
     this.inputLeft = compressedSize;
+    this.bytes = new Uint8Array(history + 2 * OUTPUT_CHUNK);
   }
 
-  static async open(window: SourceWindow, compressedSize: number, size: number): Promise<SnappyPageBytes> {
-    const stream = new SnappyPageBytes(window, compressedSize, size);
+  /** `history`: output kept behind the last byte written for copies (64 KiB; less only to test the fallback). */
+  static async open(window: SourceWindow, compressedSize: number, size: number, history = HISTORY): Promise<SnappyPageBytes> {
+    const stream = new SnappyPageBytes(window, compressedSize, size, history);
     await window.ensure(Math.min(5, compressedSize));
     let length = 0;
     let shift = 0;
@@ -205,8 +208,8 @@ export class SnappyPageBytes implements PageBytes {
   private makeRoom(n: number): void {
     const room = Math.max(OUTPUT_CHUNK / 2, n + LONGEST_COPY);
     if (this.bytes.length - this.end >= room) return;
-    // Keep the unread bytes and the 64 KiB of history before the end.
-    const keepFrom = Math.max(0, Math.min(this.position, this.end - HISTORY));
+    // Keep the unread bytes and the history before the end.
+    const keepFrom = Math.max(0, Math.min(this.position, this.end - this.history));
     this.base += keepFrom;
     const needed = this.end - keepFrom + room;
     if (needed > this.bytes.length) {
@@ -290,7 +293,8 @@ export class SnappyPageBytes implements PageBytes {
         at += 5;
       }
       if (offset === 0 || offset > produced) throw new StreamDamaged(`snappy: a copy reaches back ${offset} bytes, before the start of the page`);
-      if (offset > end) throw new StreamFallback(`snappy: a copy reaches back ${offset} bytes, beyond the ${HISTORY} kept`);
+      // Beyond the history promised to be kept (the buffer may hold more; the rule does not depend on it).
+      if (offset > this.history || offset > end) throw new StreamFallback(`snappy: a copy reaches back ${offset} bytes, beyond the ${this.history} kept`);
       if (produced + length > size) throw new StreamDamaged('snappy: a copy runs past the page');
       // At most 64 bytes, often overlapping its source: byte by byte.
       let from = end - offset;
