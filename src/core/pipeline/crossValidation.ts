@@ -20,14 +20,20 @@ export function autoMethod(n: number, d: number): 'loo' | `kfold:${number}` {
 }
 
 /**
+ * Share of the leave-one-out limit from which `auto` collects fold parts in pass 1: the row
+ * estimate comes from the bytes per row of a sample and is rarely off by more than a few percent;
+ * when it was too low after all, the pipeline collects the folds in an extra pass.
+ */
+export const COLLECT_FOLDS_FROM = 0.95;
+
+/**
  * Fold count to collect in pass 1, before n is known: the asked k, or for `auto` 10 when the
- * inspection's row estimate puts n·d² above half the limit (a margin for the estimate, which comes
- * from the bytes per row of a sample: rarely off by more than a few percent); when the estimate
- * was too low, the pipeline collects the folds in an extra pass. A wider margin made every large
- * leave-one-out fit accumulate ten fold parts it did not use (a third more work in pass 1).
+ * inspection's row estimate puts n·d² within 5% of the leave-one-out limit or above it. A wider
+ * margin made large leave-one-out fits accumulate ten fold parts they did not use (a third more
+ * work in pass 1).
  */
 export function foldsToCollect(cv: CvMethod, estimatedRows: number, d: number): number | undefined {
-  if (cv === 'auto') return estimatedRows * d * d > AUTO_LOO_LIMIT / 2 ? AUTO_FOLDS : undefined;
+  if (cv === 'auto') return estimatedRows * d * d > AUTO_LOO_LIMIT * COLLECT_FOLDS_FROM ? AUTO_FOLDS : undefined;
   return foldCount(cv);
 }
 
