@@ -121,11 +121,27 @@ export class OutputFile {
   }
 }
 
-/** Writes `text` whole to `path` through an OutputFile: renamed into place, or removed on failure. */
-export function writeWholeFile(path: string, text: string): void {
+/** Pieces of text gathered into chunks of about 64 KiB, so that writing them costs few calls. */
+function* chunked(pieces: Iterable<string>): Generator<string> {
+  let chunk = '';
+  for (const piece of pieces) {
+    chunk += piece;
+    if (chunk.length >= 65536) {
+      yield chunk;
+      chunk = '';
+    }
+  }
+  if (chunk.length > 0) yield chunk;
+}
+
+/**
+ * Writes `text` (or its pieces, never joined into one string) to `path` through an OutputFile:
+ * renamed into place, or removed on failure.
+ */
+export function writeWholeFile(path: string, text: string | Iterable<string>): void {
   const out = new OutputFile(path);
   try {
-    out.write(text);
+    for (const chunk of typeof text === 'string' ? [text] : chunked(text)) out.write(chunk);
     out.commit();
   } catch (error) {
     out.discard();
@@ -133,8 +149,9 @@ export function writeWholeFile(path: string, text: string): void {
   }
 }
 
-/** Writes a command's output to the `--out` file when one was given, otherwise to stdout. */
-export function writeOutput(io: Pick<CommandIO, 'stdout'>, outPath: string | undefined, text: string): void {
-  if (outPath === undefined) io.stdout(text);
-  else writeWholeFile(outPath, text);
+/** Writes a command's output (whole, or in pieces) to the `--out` file when one was given, otherwise to stdout. */
+export function writeOutput(io: Pick<CommandIO, 'stdout'>, outPath: string | undefined, text: string | Iterable<string>): void {
+  if (outPath !== undefined) writeWholeFile(outPath, text);
+  else if (typeof text === 'string') io.stdout(text);
+  else for (const chunk of chunked(text)) io.stdout(chunk);
 }

@@ -5,6 +5,7 @@
  */
 import { resolve } from 'node:path';
 import { analyze } from '../../core/analyze';
+import { jsonPieces } from '../../core/format/jsonPieces';
 import { toMarkdown } from '../../core/format/markdown';
 import { toText } from '../../core/format/text';
 import { resolveOptions } from '../../core/pipeline/options';
@@ -35,10 +36,12 @@ const OUTPUT_SPECS: readonly OptionSpec[] = [
   { name: 'moments', describe: 'the FILEs are per-class moments (JSON from `scatterwise moments`, or CSV results of the SQL moments query), merged and fitted without the rows' },
 ];
 
-export function renderReport(report: FitReport, format: ReportFormat): string {
-  if (format === 'json') return `${JSON.stringify(report, null, 2)}\n`;
-  if (format === 'markdown') return toMarkdown(report);
-  return toText(report);
+/** The report as text, Markdown or JSON, in pieces: the JSON of a large plot sample is never one string. */
+export function* renderReport(report: FitReport, format: ReportFormat): Generator<string> {
+  if (format === 'json') {
+    yield* jsonPieces(report);
+    yield '\n';
+  } else yield format === 'markdown' ? toMarkdown(report) : toText(report);
 }
 
 async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
@@ -74,8 +77,7 @@ async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
       ...(scanner ? { scanner } : {}),
     });
     scores?.finish(report.rows.total, report.discriminant.eigenvalues.length);
-    const text = renderReport(report, format);
-    writeOutput(io, outPath, text);
+    writeOutput(io, outPath, renderReport(report, format));
     return EXIT_OK;
   } catch (error) {
     scores?.discard();
