@@ -293,20 +293,31 @@ export function solvePooled(p: PooledMoments, options: LdaOptions): LdaSolution 
   const positionInActive = new Map(active.map((f, i) => [f, i]));
   const pivotOf = new Map(revealed.order.map((f, q) => [f, q]));
   const activeIndex = Int32Array.from(kept, (f) => positionInActive.get(f)!);
-  const withinScatter = new Float64Array(rk * rk);
-  const betweenScatter = new Float64Array(rk * rk);
-  for (let a = 0; a < rk; a++) {
-    const row = activeIndex[a] * r;
-    for (let b = 0; b < rk; b++) withinScatter[a * rk + b] = solved[row + activeIndex[b]];
-  }
-  for (let i = 0; i < K; i++) {
-    const dev = Float64Array.from(kept, (f) => deviations[i][f]);
+  // S_W and S_B over the kept features are for callers that want them (tests, diagnostics), not
+  // for anything the fit reports: formed on first read, so a wide fit does not pay 2·r² memory and
+  // K·r² multiply-adds for them.
+  let withinCache: Float64Array | undefined;
+  let betweenCache: Float64Array | undefined;
+  const formWithin = (): Float64Array => {
+    const out = new Float64Array(rk * rk);
     for (let a = 0; a < rk; a++) {
-      const w = counts[i] * dev[a];
-      const row = a * rk;
-      for (let b = 0; b < rk; b++) betweenScatter[row + b] += w * dev[b];
+      const row = activeIndex[a] * r;
+      for (let b = 0; b < rk; b++) out[a * rk + b] = solved[row + activeIndex[b]];
     }
-  }
+    return out;
+  };
+  const formBetween = (): Float64Array => {
+    const out = new Float64Array(rk * rk);
+    for (let i = 0; i < K; i++) {
+      const dev = Float64Array.from(kept, (f) => deviations[i][f]);
+      for (let a = 0; a < rk; a++) {
+        const w = counts[i] * dev[a];
+        const row = a * rk;
+        for (let b = 0; b < rk; b++) out[row + b] += w * dev[b];
+      }
+    }
+    return out;
+  };
   const permuteRows = (source: Float64Array): Float64Array => {
     const out = new Float64Array(rk * k);
     kept.forEach((f, a) => out.set(source.subarray(pivotOf.get(f)! * k, (pivotOf.get(f)! + 1) * k), a * k));
@@ -328,8 +339,12 @@ export function solvePooled(p: PooledMoments, options: LdaOptions): LdaSolution 
     priorsRule: options.priors,
     overallMean: Float64Array.from(kept, (j) => overall[j]),
     classMeans,
-    withinScatter,
-    betweenScatter,
+    get withinScatter(): Float64Array {
+      return (withinCache ??= formWithin());
+    },
+    get betweenScatter(): Float64Array {
+      return (betweenCache ??= formBetween());
+    },
     eigenvalues: directions.eigenvalues,
     explainedRatio: directions.explainedRatio,
     canonicalCorrelations: directions.canonicalCorrelations,
