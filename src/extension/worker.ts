@@ -1,8 +1,8 @@
 /**
  * The fit worker (bundled to dist/worker.js): runs one analysis off the extension host's event
- * loop. It opens the data file read-only, hashes its bytes while the analysis reads them, posts a
- * provisional result from the first bytes of a large file, then the full one, and ends. The host
- * cancels by terminating the thread, so nothing here needs to poll for cancellation.
+ * loop. It opens the data file read-only, posts a provisional result from the first bytes of a
+ * large file, hashes the bytes while the full analysis reads them, posts the full result, and
+ * ends. The host cancels by terminating the thread, so nothing here needs to poll for cancellation.
  */
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
@@ -88,11 +88,14 @@ async function run(request: FitRequest): Promise<void> {
   try {
     const bytes = request.bytes;
     source = bytes ? { ...memorySource(request.path, bytes), close: async () => undefined } : await openFileSource(request.path);
-    const hashing = (bytes ? Promise.resolve(createHash('sha256').update(bytes).digest('hex')) : hashFile(request.path)).then((sha256) => {
-      post({ type: 'hashed', sha256 });
-      return sha256;
-    });
-    hashing.catch(() => undefined); // a read failure surfaces through the analysis or the await below
+    const startHashing = (): Promise<string> => {
+      const hashing = (bytes ? Promise.resolve(createHash('sha256').update(bytes).digest('hex')) : hashFile(request.path)).then((sha256) => {
+        post({ type: 'hashed', sha256 });
+        return sha256;
+      });
+      hashing.catch(() => undefined); // a read failure surfaces through the analysis or the await below
+      return hashing;
+    };
     if (source.size > request.provisionalBytes) {
       try {
         const quickOptions = { ...request.options, plotBudget: Math.min(request.options.plotBudget ?? DEFAULT_FIT_OPTIONS.plotBudget, PROVISIONAL_PLOT_BUDGET) };
@@ -107,6 +110,8 @@ async function run(request: FitRequest): Promise<void> {
         if (!(error instanceof DataError)) throw error;
       }
     }
+    // Hashing reads the whole file on this thread: it starts once the first look is out, not beside it.
+    const hashing = startHashing();
     const scanner = bytes ? undefined : parallelScanner(request);
     let full;
     const analysisStarted = clock();
