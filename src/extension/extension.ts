@@ -39,6 +39,7 @@ export function activate(context: vscode.ExtensionContext): ScatterwiseApi {
   const output = vscode.window.createOutputChannel('Scatterwise', { log: true });
   const log = new PostLog();
   const workers = new FitWorkers(vscode.Uri.joinPath(context.extensionUri, 'dist', 'worker.js').fsPath);
+  workers.prepare();
   const provider = new SeparabilityEditorProvider(context.extensionUri, {
     workers,
     cache: new ResultCache(),

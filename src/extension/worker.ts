@@ -1,14 +1,15 @@
 /**
  * The fit worker (bundled to dist/worker.js): runs one analysis off the extension host's event
- * loop. It opens the data file read-only, posts a provisional result from the first bytes of a
- * large file, hashes the bytes while the full analysis reads them, posts the full result, and
- * ends. The host cancels by terminating the thread, so nothing here needs to poll for cancellation.
+ * loop. Its request is its first message (the thread may be started before it is needed). It
+ * opens the data file read-only, posts a provisional result from the first bytes of a large file,
+ * hashes the bytes while the full analysis reads them, posts the full result, and ends. The host
+ * cancels by terminating the thread, so nothing here needs to poll for cancellation.
  */
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { performance } from 'node:perf_hooks';
-import { parentPort, workerData } from 'node:worker_threads';
+import { parentPort } from 'node:worker_threads';
 import { analyze } from '../core/analyze';
 import { DataError } from '../core/errors';
 import { DEFAULT_FIT_OPTIONS } from '../core/types';
@@ -23,7 +24,6 @@ import type { FitFailure, FitRequest, FromWorker } from './workerProtocol';
 
 /** Epoch milliseconds, comparable with the host's (see WorkerTiming). */
 const clock = (): number => performance.timeOrigin + performance.now();
-const started = clock();
 
 const port = parentPort;
 if (!port) throw new Error('worker.ts runs only as a worker thread');
@@ -84,6 +84,7 @@ function toFailure(error: unknown): FitFailure {
 }
 
 async function run(request: FitRequest): Promise<void> {
+  const started = clock();
   let source: Awaited<ReturnType<typeof openFileSource>> | undefined;
   try {
     const bytes = request.bytes;
@@ -153,4 +154,5 @@ async function columnsIfReadable(
   }
 }
 
-void run(workerData as FitRequest);
+// The request is the first message: a thread may be started before it is needed (fitWorkers.ts).
+port.once('message', (request: FitRequest) => void run(request));

@@ -1,7 +1,8 @@
 /**
  * Messages between the extension host and the fit worker (dist/worker.js). The worker gets one
- * request in `workerData`, posts progress, the content hash, at most one provisional and one final
- * result (or an error), and then ends. The host stops it with `Worker.terminate()`.
+ * request as its first message (a spare thread is started before it is needed), posts progress,
+ * the content hash, at most one provisional and one final result (or an error), and then ends.
+ * The host stops it with `Worker.terminate()`.
  */
 import type { FitOptions } from '../core/types';
 import type { ColumnChoice, PanelReport } from '../shared/messages';
@@ -34,7 +35,7 @@ export interface FitFailure {
  * comparable across threads): the host writes where the time went to its output channel.
  */
 export interface WorkerTiming {
-  /** The worker's script began to run (its bundle loaded). */
+  /** The worker took its request (its bundle was loaded by then: a spare loads it before it is asked). */
   started: number;
   /** The analysis behind this result began and ended. */
   analysisStarted: number;
