@@ -9,6 +9,8 @@
  */
 export { symmetricEigen, symmetricEigenvalues, tridiagonalEigenvalues, type SymmetricEigen } from './symmetricEigen';
 export { thinSvd, type ThinSvd } from './singularValues';
+// PANEL: columns of a Cholesky panel; the trailing update is a rank-PANEL product over rows held contiguously.
+import { choleskyKernel, PANEL, type CholeskyKernel } from './choleskyKernel';
 
 /** Unit roundoff of IEEE double, 2⁻⁵². */
 export const EPSILON = Number.EPSILON;
@@ -101,8 +103,6 @@ export function pivotedCholeskyInPlace(a: Float64Array, n: number, tolerance: nu
   return { rank, pivots, factor: a, residual };
 }
 
-/** Columns of a panel: the trailing update is a rank-PANEL product over rows held contiguously. */
-const PANEL = 32;
 
 /** The lower triangle of a (diagonal included) in a new n × n array; the upper part is zero. */
 function lowerCopy(a: Float64Array, n: number): Float64Array {
@@ -137,8 +137,34 @@ function factorInPlace(
   pivots: Int32Array | null,
   residual: Float64Array | null,
 ): { rank: number; failedAt: number } {
+  // With WebAssembly SIMD the matrix is factored in the kernel's memory (n² values, then the
+  // panel) and copied back: two copies of n² values against n³/6 multiply-adds.
+  const kernel = choleskyKernel(n * n + n * PANEL, n);
+  if (kernel === null) return factorBlocked(w, n, tolerance, pivoting, pivots, residual, new Float64Array(n * PANEL), null);
+  const values = kernel.values;
+  values.set(w.subarray(0, n * n));
+  try {
+    return factorBlocked(values, n, tolerance, pivoting, pivots, residual, values.subarray(n * n), kernel);
+  } finally {
+    w.set(values.subarray(0, n * n));
+  }
+}
+
+/**
+ * factorInPlace's work on w, with `panel` (n × PANEL) for the panel copy; with `kernel`, w is
+ * the start of the kernel's memory and the panel directly follows it (at n²).
+ */
+function factorBlocked(
+  w: Float64Array,
+  n: number,
+  tolerance: number,
+  pivoting: boolean,
+  pivots: Int32Array | null,
+  residual: Float64Array | null,
+  panel: Float64Array,
+  kernel: CholeskyKernel | null,
+): { rank: number; failedAt: number } {
   const diagonal = new Float64Array(n);
-  const panel = new Float64Array(n * PANEL);
   for (let j0 = 0; j0 < n; j0 += PANEL) {
     const j1 = Math.min(n, j0 + PANEL);
     for (let p = j0; p < n; p++) diagonal[p] = w[p * n + p];
@@ -189,7 +215,7 @@ function factorInPlace(
         const out = p * PANEL;
         for (let t = 0; t < width; t++) panel[out + t] = w[rowP + t];
       }
-      trailingUpdate(w, n, j1, panel, width);
+      trailingUpdate(w, n, j1, panel, width, kernel);
     }
   }
   return { rank: n, failedAt: -1 };
@@ -226,9 +252,11 @@ function symmetricSwap(w: Float64Array, n: number, k: number, b: number): void {
 /**
  * w[p][q] −= Σ_t panel[p][t]·panel[q][t] for start ≤ q ≤ p < n (the trailing lower triangle),
  * panel rows of `width` values at stride PANEL: two rows by four columns per turn, so six loads
- * feed eight multiply-adds.
+ * feed eight multiply-adds. With `kernel` (w and panel in its memory, the panel at n²), the
+ * groups of four columns of each pair of rows run in WebAssembly SIMD (choleskyKernel.rowPair).
  */
-function trailingUpdate(w: Float64Array, n: number, start: number, panel: Float64Array, width: number): void {
+function trailingUpdate(w: Float64Array, n: number, start: number, panel: Float64Array, width: number, kernel: CholeskyKernel | null): void {
+  const simd = kernel !== null && width % 2 === 0;
   let p = start;
   for (; p + 1 < n; p += 2) {
     const a0 = p * PANEL;
@@ -236,6 +264,11 @@ function trailingUpdate(w: Float64Array, n: number, start: number, panel: Float6
     const row0 = p * n;
     const row1 = row0 + n;
     let q = start;
+    if (simd) {
+      const tiles = (p - start + 1) >> 2;
+      if (tiles > 0) kernel.rowPair(row0 + start, n, n * n + a0, n * n + start * PANEL, tiles, width);
+      q += 4 * tiles;
+    }
     for (; q + 3 <= p; q += 4) {
       const b0 = q * PANEL;
       const b1 = b0 + PANEL;

@@ -21,6 +21,9 @@ export interface PooledMoments {
   singleValueWithinClasses: Uint8Array;
 }
 
+/** Values of the pooled scatter summed over every class at a time (16 KB, well inside L1/L2). */
+const SUM_BLOCK = 2048;
+
 export function pooledFromMoments(m: Moments): PooledMoments {
   const d = m.features.length;
   const withinScatter = new Float64Array(d * d);
@@ -30,8 +33,15 @@ export function pooledFromMoments(m: Moments): PooledMoments {
   let quartic = 0;
   const lo = new Float64Array(d).fill(Infinity);
   const hi = new Float64Array(d).fill(-Infinity);
+  // Summed a block at a time over all classes: one pass over the output instead of K (at d = 1000
+  // each scatter is 8 MB, so class by class re-read and re-wrote the sum from memory K times).
+  const scatters = m.classes.map((c) => c.scatter);
+  const size = d * d;
+  for (let k0 = 0; k0 < size; k0 += SUM_BLOCK) {
+    const k1 = Math.min(size, k0 + SUM_BLOCK);
+    for (const scatter of scatters) for (let k = k0; k < k1; k++) withinScatter[k] += scatter[k];
+  }
   for (const c of m.classes) {
-    for (let k = 0; k < d * d; k++) withinScatter[k] += c.scatter[k];
     quartic += c.quartic;
     for (let j = 0; j < d; j++) {
       magnitude[j] = Math.max(magnitude[j], Math.abs(c.min[j]), Math.abs(c.max[j]));
