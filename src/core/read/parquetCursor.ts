@@ -73,6 +73,12 @@ interface StreamedPage {
   indexes: HybridStream | null;
 }
 
+/** Bytes of a streamed dictionary page copied at a time. */
+const DICTIONARY_PIECE = 64 * 1024;
+
+/** Rows of a streamed page skipped at a time (bounds the levels and page bytes held for a skip). */
+const SKIP_ROWS = 16_384;
+
 const NUMBER_ARRAYS = { DOUBLE: Float64Array, FLOAT: Float32Array, INT32: Int32Array, INT64: BigInt64Array } as const;
 type StreamedType = keyof typeof NUMBER_ARRAYS;
 
@@ -119,12 +125,16 @@ export class FlatColumnCursor {
     private readonly chunkEnd: number,
     readonly rows: number,
     private readonly tuning: CursorTuning,
+    private readonly dictionaries: Map<number, DecodedArray> | undefined,
   ) {
     this.window = new SourceWindow(source, start, chunkEnd, tuning.readBytes);
   }
 
-  /** A cursor over column `column` of `group`, or null when the column is not flat (nested, repeated) or lives in another file. */
-  static open(source: ByteSource, metadata: FileMetaData, group: RowGroup, column: string, compressors: Compressors, tuning: CursorTuning): FlatColumnCursor | null {
+  /**
+   * A cursor over column `column` of `group`, or null when the column is not flat (nested, repeated) or lives in another file.
+   * `dictionaries`: decoded dictionary pages by file offset, kept by the caller to serve its next pass over the group.
+   */
+  static open(source: ByteSource, metadata: FileMetaData, group: RowGroup, column: string, compressors: Compressors, tuning: CursorTuning, dictionaries?: Map<number, DecodedArray>): FlatColumnCursor | null {
     const chunk = group.columns.find((candidate) => candidate.meta_data?.path_in_schema.length === 1 && candidate.meta_data.path_in_schema[0] === column);
     const meta = chunk?.meta_data;
     if (chunk === undefined || meta === undefined || chunk.file_path !== undefined) return null;
@@ -134,7 +144,7 @@ export class FlatColumnCursor {
     const decoder = { pathInSchema: [column], type: meta.type, element, schemaPath, codec: meta.codec, parsers: DEFAULT_PARSERS, compressors, utf8: true };
     const start = Number(meta.dictionary_page_offset || meta.data_page_offset);
     const end = Math.min(source.size, start + Number(meta.total_compressed_size));
-    return new FlatColumnCursor(source, decoder, element, getMaxDefinitionLevel(schemaPath), meta.codec, compressors, start, end, Number(group.num_rows), tuning);
+    return new FlatColumnCursor(source, decoder, element, getMaxDefinitionLevel(schemaPath), meta.codec, compressors, start, end, Number(group.num_rows), tuning, dictionaries);
   }
 
   /** The next rows, at most maxRows and at least one while rows remain (throws when the data ends early). */
@@ -203,14 +213,61 @@ export class FlatColumnCursor {
       return { rows, levels, levelStart: 0, presentLevel: this.presentLevel, values, indexes, dictionary: indexes ? this.dictionary : null, valueStart: 0 };
     } catch (error) {
       if (!(error instanceof StreamFallback)) throw error;
-      // Decode the page whole from the file and go on from the same row.
-      const compressed = await readExactly(this.source, page.dataOffset, page.header.compressed_page_size);
-      const whole = this.decodeWhole(compressed, page.header);
-      this.streamed = null;
-      this.window = new SourceWindow(this.source, page.dataOffset + page.header.compressed_page_size, this.chunkEnd, this.tuning.readBytes);
-      this.whole = whole;
-      if (page.rowAt > 0) this.nextWhole(whole, page.rowAt);
-      return this.nextWhole(whole, maxRows);
+      return this.nextWhole(await this.fallBack(page), maxRows);
+    }
+  }
+
+  /** Decodes a streamed page whole from the file, positioned at the row the stream had reached. */
+  private async fallBack(page: StreamedPage): Promise<WholePage> {
+    const compressed = await readExactly(this.source, page.dataOffset, page.header.compressed_page_size);
+    const whole = this.decodeWhole(compressed, page.header);
+    this.streamed = null;
+    this.window = new SourceWindow(this.source, page.dataOffset + page.header.compressed_page_size, this.chunkEnd, this.tuning.readBytes);
+    this.whole = whole;
+    if (page.rowAt > 0) this.nextWhole(whole, page.rowAt);
+    return whole;
+  }
+
+  /**
+   * Passes over the next `rows` rows, for a share of the row group that starts inside it: nothing is
+   * converted or gathered, and bit-packed dictionary indexes are stepped over by their bytes (the
+   * page is still decompressed up to the share's first row).
+   */
+  async skip(rows: number): Promise<void> {
+    let left = rows;
+    while (left > 0) {
+      while (this.whole === null && this.streamed === null) await this.readPage();
+      const done = this.whole ? this.nextWhole(this.whole, left).rows : await this.skipStreamed(this.streamed!, Math.min(left, SKIP_ROWS));
+      this.rowsDone += done;
+      left -= done;
+    }
+  }
+
+  /** Skips up to maxRows rows of a streamed page; 0 when the page had to be decoded whole instead (then skipped as whole). */
+  private async skipStreamed(page: StreamedPage, maxRows: number): Promise<number> {
+    const rows = Math.min(maxRows, page.rows - page.rowAt);
+    try {
+      let present = rows;
+      if (page.levels) {
+        if (this.levelBuffer.length < rows) this.levelBuffer = new Uint8Array(rows);
+        const levels = this.levelBuffer;
+        await page.levels.read(rows, levels, 0);
+        present = 0;
+        for (let i = 0; i < rows; i++) present += levels[i];
+      }
+      if (page.indexes) await page.indexes.skip(present);
+      else {
+        const width = NUMBER_ARRAYS[this.decoder.type as StreamedType].BYTES_PER_ELEMENT;
+        await page.bytes.ensure(present * width);
+        page.bytes.position += present * width;
+      }
+      page.rowAt += rows;
+      if (page.rowAt >= page.rows) this.finishStreamed(page);
+      return rows;
+    } catch (error) {
+      if (!(error instanceof StreamFallback)) throw error;
+      await this.fallBack(page);
+      return 0;
     }
   }
 
@@ -243,10 +300,15 @@ export class FlatColumnCursor {
     const dataOffset = this.window.position;
     const size = header.compressed_page_size;
     if (header.type === 'DICTIONARY_PAGE') {
-      const compressed = await this.window.take(size);
-      const page = decompressPage(compressed, Number(header.uncompressed_page_size), this.codec, this.compressors);
-      const reader = { view: new DataView(page.buffer, page.byteOffset, page.byteLength), offset: 0 };
-      this.dictionary = convert(readPlain(reader, this.decoder.type, header.dictionary_page_header?.num_values ?? 0, this.element.type_length), this.decoder);
+      // Decoded already by an earlier pass over this row group: the same values (never written to).
+      const known = this.dictionaries?.get(dataOffset);
+      if (known) {
+        this.window.discard(size);
+        this.dictionary = known;
+        return;
+      }
+      this.dictionary = (await this.streamedDictionary(header, dataOffset)) ?? this.wholeDictionary(await this.window.take(size), header);
+      this.dictionaries?.set(dataOffset, this.dictionary);
       return;
     }
     if (header.type !== 'DATA_PAGE' && header.type !== 'DATA_PAGE_V2') {
@@ -259,6 +321,46 @@ export class FlatColumnCursor {
       return;
     }
     this.whole = this.decodeWhole(await this.window.take(size), header);
+  }
+
+  private wholeDictionary(compressed: Uint8Array, header: PageHeader): DecodedArray {
+    const page = decompressPage(compressed, Number(header.uncompressed_page_size), this.codec, this.compressors);
+    const reader = { view: new DataView(page.buffer, page.byteOffset, page.byteLength), offset: 0 };
+    return convert(readPlain(reader, this.decoder.type, header.dictionary_page_header?.num_values ?? 0, this.element.type_length), this.decoder);
+  }
+
+  /**
+   * A large dictionary of plain numbers decompressed as it is read, straight into its array (in
+   * shared memory where there is one, so that threads reading the same row group can hold it once:
+   * shareParquetDictionaries), without the page's compressed and decompressed copies beside it
+   * (DuckDB's dictionaries can be megabytes a column). Null when it is read whole instead.
+   */
+  private async streamedDictionary(header: PageHeader, dataOffset: number): Promise<DecodedArray | null> {
+    const size = header.compressed_page_size;
+    const count = header.dictionary_page_header?.num_values ?? 0;
+    if (size <= this.tuning.streamPageBytes || (this.codec !== 'UNCOMPRESSED' && this.codec !== 'SNAPPY')) return null;
+    if (!(this.decoder.type in NUMBER_ARRAYS) || !plainNumbers(this.element)) return null;
+    const Type = NUMBER_ARRAYS[this.decoder.type as StreamedType];
+    const length = count * Type.BYTES_PER_ELEMENT;
+    if (header.uncompressed_page_size < length) throw new StreamDamaged(`a dictionary page of ${header.uncompressed_page_size} bytes for ${count} values`);
+    const memory = typeof SharedArrayBuffer === 'undefined' ? new ArrayBuffer(length) : new SharedArrayBuffer(length);
+    const target = new Uint8Array(memory);
+    try {
+      const bytes: PageBytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(this.window, size, header.uncompressed_page_size, this.tuning.snappyHistoryBytes) : new PlainPageBytes(this.window, size);
+      for (let filled = 0; filled < length; ) {
+        const n = Math.min(DICTIONARY_PIECE, length - filled);
+        await bytes.ensure(n);
+        target.set(bytes.bytes.subarray(bytes.position, bytes.position + n), filled);
+        bytes.position += n;
+        filled += n;
+      }
+    } catch (error) {
+      if (!(error instanceof StreamFallback)) throw error;
+      this.window = new SourceWindow(this.source, dataOffset + size, this.chunkEnd, this.tuning.readBytes);
+      return this.wholeDictionary(await readExactly(this.source, dataOffset, size), header);
+    }
+    if (this.window.position !== dataOffset + size) this.window = new SourceWindow(this.source, dataOffset + size, this.chunkEnd, this.tuning.readBytes);
+    return new Type(memory as ArrayBuffer) as DecodedArray;
   }
 
   private streamable(header: PageHeader, size: number): boolean {
