@@ -19,7 +19,7 @@ import { CELL_MISSING, CELL_TEXT } from './cellValue';
 import { ColumnSample } from './columnSample';
 import { isParquetMagic } from './format';
 import { asyncBufferOf, ParquetFeatureReader, textOf } from './parquetValues';
-import { FlatColumnCursor, type ColumnPiece, type CursorTuning } from './parquetCursor';
+import { ColumnBuffers, FlatColumnCursor, type ColumnPiece, type CursorTuning } from './parquetCursor';
 import { parquetColumns, type ParquetColumn } from './parquetSchema';
 import { PassProgress } from './progress';
 import { readCopy } from './readBytes';
@@ -154,13 +154,13 @@ class ColumnRows {
     private readonly cursor: FlatColumnCursor | null,
   ) {}
 
-  static open(opened: OpenedParquet, source: ByteSource, group: RowGroup, groupStart: number, column: string, tuning: ParquetTuning): ColumnRows {
+  static open(opened: OpenedParquet, source: ByteSource, group: RowGroup, groupStart: number, column: string, tuning: ParquetTuning, buffers?: ColumnBuffers): ColumnRows {
     const kept = opened.dictionaries;
     if (kept.group !== group) {
       kept.group = group;
       kept.byOffset = new Map(kept.shared);
     }
-    const cursor = FlatColumnCursor.open(source, opened.metadata, group, column, compressors, tuning, kept.byOffset);
+    const cursor = FlatColumnCursor.open(source, opened.metadata, group, column, compressors, tuning, kept.byOffset, buffers);
     return new ColumnRows(opened, source.name, column, groupStart, Number(group.num_rows), cursor);
   }
 
@@ -316,7 +316,12 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
   const reader = new ParquetFeatureReader(rules);
   const progress = new PassProgress(request.control, request.pass ?? 'rows', source.size);
   // Per needed column: the feature slots it fills, and whether it is the label.
-  const targets = needed.map((column) => ({ column, slots: features.flatMap((feature, slot) => (feature.name === column ? [slot] : [])), label: label?.name === column }));
+  const targets = needed.map((column) => ({
+    column,
+    slots: features.flatMap((feature, slot) => (feature.name === column ? [slot] : [])),
+    label: label?.name === column,
+    buffers: new ColumnBuffers(),
+  }));
 
   // Labels are interned in row order, so ids follow the order of first appearance.
   const labelId = (value: unknown): number => {
@@ -395,7 +400,7 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
       groupStart = groupEnd;
       continue;
     }
-    const columns = targets.map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning) }));
+    const columns = targets.map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning, target.buffers) }));
     // Rows of the group before a share's first row are passed over.
     if (from > groupStart) for (const { rows } of columns) await rows.skip(from - groupStart);
     for (let first = from; first < to; first += batchRows) {

@@ -35,9 +35,11 @@ export class SourceWindow {
     from: number,
     readonly to: number,
     private readonly chunkBytes: number,
+    /** Memory to reuse (a window before this one, whose bytes are no longer needed). */
+    reuse?: Uint8Array | null,
   ) {
     this.position = from;
-    this.buffer = new Uint8Array(0);
+    this.buffer = reuse ?? new Uint8Array(0);
   }
 
   get available(): number {
@@ -181,14 +183,18 @@ export class SnappyPageBytes implements PageBytes {
     compressedSize: number,
     private readonly size: number,
     private readonly history: number,
+    reuse: Uint8Array | undefined,
   ) {
     this.inputLeft = compressedSize;
-    this.bytes = new Uint8Array(history + 2 * OUTPUT_CHUNK);
+    this.bytes = reuse && reuse.length >= history + 2 * OUTPUT_CHUNK ? reuse : new Uint8Array(history + 2 * OUTPUT_CHUNK);
   }
 
-  /** `history`: output kept behind the last byte written for copies (64 KiB; less only to test the fallback). */
-  static async open(window: SourceWindow, compressedSize: number, size: number, history = HISTORY): Promise<SnappyPageBytes> {
-    const stream = new SnappyPageBytes(window, compressedSize, size, history);
+  /**
+   * `history`: output kept behind the last byte written for copies (64 KiB; less only to test the fallback).
+   * `reuse`: the buffer of a page stream that has ended, to decompress into.
+   */
+  static async open(window: SourceWindow, compressedSize: number, size: number, history = HISTORY, reuse?: Uint8Array): Promise<SnappyPageBytes> {
+    const stream = new SnappyPageBytes(window, compressedSize, size, history, reuse);
     await window.ensure(Math.min(5, compressedSize));
     let length = 0;
     let shift = 0;
