@@ -94,7 +94,7 @@ describe('parallel analysis: the same report as one thread', function () {
     }
   });
 
-  it('Parquet: shares of whole row groups, rows numbered in the file; one row group stays one thread', async () => {
+  it('Parquet: shares of whole row groups, or runs of rows inside few groups; rows numbered in the file', async () => {
     const table = pumpTable([900, 700, 1100], 5, 19);
     const columnOf = (j: number, type: 'DOUBLE' | 'STRING') => ({
       name: table.header[j]!,
@@ -102,9 +102,11 @@ describe('parallel analysis: the same report as one thread', function () {
       data: table.rows.map((row) => (type === 'DOUBLE' ? Number(row[j]) : row[j]!)),
     });
     const columnData = table.header.map((name, j) => columnOf(j, name.startsWith('feature') ? 'DOUBLE' : 'STRING'));
-    for (const [rowGroupSize, kinds] of [
-      [250, ['first', 'folds', 'second']],
-      [100_000, []],
+    // 11 groups: whole groups; 2 groups for 3 workers: each in 3 runs; one group: 3 runs sharing its dictionaries.
+    for (const [rowGroupSize, shares] of [
+      [250, 11],
+      [1500, 6],
+      [100_000, 3],
     ] as const) {
       const bytes = new Uint8Array(parquetWriteBuffer({ columnData, rowGroupSize }));
       const source = memorySource('fleet.parquet', bytes);
@@ -113,7 +115,7 @@ describe('parallel analysis: the same report as one thread', function () {
       const parallel = (await analyze(source, { cv: 'kfold:5' }, { scanner })).report;
       lastJobs = scanner.jobs;
       assertSameReport(single, parallel);
-      assert.deepEqual(lastJobs.map((job) => job.split('×')[0]), kinds);
+      assert.deepEqual(lastJobs, ['first', 'folds', 'second'].map((kind) => `${kind}×${shares}`));
     }
   });
 

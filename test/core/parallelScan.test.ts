@@ -29,9 +29,16 @@ function buildWorker(folder: string): string {
   return outfile;
 }
 
-async function fitFile(path: string, options: Partial<FitOptions>, workers: number, workerScript: string, signal?: AbortSignal): Promise<FitReport> {
+async function fitFile(path: string, options: Partial<FitOptions>, workers: number, workerScript: string, signal?: AbortSignal, jobs?: string[]): Promise<FitReport> {
   const source = await openFileSource(path);
   const scanner = workers > 1 ? createParallelScanner(path, source.name, { workers, minimumBytes: 0, rangeBytes: 24 * 1024, workerScript }) : undefined;
+  if (scanner && jobs) {
+    const run = scanner.run.bind(scanner);
+    scanner.run = (job, count, ...rest) => {
+      jobs.push(`${job.kind}×${count}`);
+      return run(job, count, ...rest);
+    };
+  }
   try {
     return (await analyze(source, options, { ...(scanner ? { scanner } : {}), ...(signal ? { signal } : {}) })).report;
   } finally {
@@ -62,6 +69,23 @@ describe('parallel row passes on worker threads', function () {
     }
     assert.equal(createHash('sha256').update(readFileSync(file)).digest('hex'), before, 'the data file is unchanged');
     assert.equal(statSync(file).mtimeMs, modified);
+  });
+
+  it('a Parquet file of one row group: two and three workers, each a run of its rows, give the single-thread report', async () => {
+    // Written by DuckDB (npm @duckdb/node-api, a dev dependency) from the CSV, in one row group;
+    // `coarse` has few distinct values, so it is dictionary-encoded and its dictionary is shared.
+    const { DuckDBInstance } = await import('@duckdb/node-api');
+    const connection = await (await DuckDBInstance.create(':memory:')).connect();
+    const parquet = join(folder, 'fleet.parquet');
+    await connection.run(`COPY (SELECT *, round(feature_1 * 4, 0) AS coarse FROM read_csv('${file}', header = true)) TO '${parquet}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 1000000)`);
+    connection.closeSync();
+    const single = await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, 1, workerScript);
+    assert.equal(single.rows.total, 7400);
+    for (const workers of [2, 3]) {
+      const jobs: string[] = [];
+      assertSameReport(single, await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, workers, workerScript, undefined, jobs));
+      assert.deepEqual(jobs, ['first', 'folds', 'second'].map((kind) => `${kind}×${workers}`));
+    }
   });
 
   it('a cancelled analysis rejects with CancelledError', async () => {

@@ -31,7 +31,7 @@ const OUTPUT_SPECS: readonly OptionSpec[] = [
     name: 'workers',
     value: 'N',
     check: (value) => (/^[1-9][0-9]*$/.test(value) ? null : 'a whole number of at least 1'),
-    describe: 'threads reading the rows of a large CSV or TSV (default: one per core; 1 reads in this thread)',
+    describe: 'threads reading the rows of a large CSV, TSV or Parquet file (default: one per core; 1 reads in this thread)',
   },
   { name: 'moments', describe: 'the FILEs are per-class moments (JSON from `scatterwise moments`, or CSV results of the SQL moments query), merged and fitted without the rows' },
 ];

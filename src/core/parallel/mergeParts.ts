@@ -33,7 +33,7 @@ function shifted(examples: CellExample[], rowBase: number, lineBase: number): Ce
 }
 
 /** A share of a source for one task: a byte range of text or the rows of Parquet row groups, with its share of the bytes. */
-export type SourceShare = Pick<RangeTask, 'range' | 'rows' | 'bytes'>;
+export type SourceShare = Pick<RangeTask, 'range' | 'rows' | 'bytes' | 'dictionaries'>;
 
 /**
  * Pass 1 of the whole file from its ranges' parts (in file order) and the workers' moments.

@@ -9,6 +9,7 @@ import { MomentsAccumulator } from '../moments';
 import { firstPass } from '../pipeline/firstPass';
 import { rowValueHash } from '../pipeline/duplicateRows';
 import { secondPass } from '../pipeline/secondPass';
+import { adoptParquetDictionaries } from '../read/parquet';
 import type { CrossValidator, ScoreBatch } from '../pipeline/secondPass';
 import type { ByteSource, RunControl } from '../source';
 import type {
@@ -34,9 +35,15 @@ function share(task: RangeTask): { range?: RangeTask['range']; rows?: RangeTask[
 }
 
 export function openPassJob(source: ByteSource, job: PassJob): PassJobRunner {
-  if (job.kind === 'first') return firstJob(source, job);
-  if (job.kind === 'folds') return foldJob(source, job);
-  return secondJob(source, job);
+  const runner = job.kind === 'first' ? firstJob(source, job) : job.kind === 'folds' ? foldJob(source, job) : secondJob(source, job);
+  return {
+    async scan(task, control) {
+      // A Parquet row group shared by the threads: its dictionaries come with the task, decoded once.
+      if (task.dictionaries) await adoptParquetDictionaries(source, task.dictionaries);
+      return runner.scan(task, control);
+    },
+    finish: () => runner.finish(),
+  };
 }
 
 /**

@@ -13,6 +13,7 @@ import type { Moments } from '../moments';
 import type { FoldPart } from '../foldModels';
 import type { LdaOptions, LdaSolution } from '../lda';
 import type { PcaSolution } from '../pca';
+import type { SharedDictionaries } from '../read/parquet';
 import type { ByteRange, ScanSummary, TableInspection } from '../read/types';
 import type { RunControl } from '../source';
 import type { SecondPassResult } from '../pipeline/secondPass';
@@ -77,6 +78,8 @@ export interface RangeTask {
   rows?: { start: number; end: number };
   /** The range's share of the source's bytes, for progress. */
   bytes: number;
+  /** Parquet: dictionaries of a row group the threads share (decoded once, in shared memory). */
+  dictionaries?: SharedDictionaries;
   /** Pass 1: how many used rows of this range to hash for the duplicate check (0: none). */
   duplicateBudget?: number;
   /** Used rows before the range per class in order of first appearance (folds). */

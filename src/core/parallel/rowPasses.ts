@@ -1,7 +1,7 @@
 /**
  * The row passes of an analysis, in one thread (firstPass, secondPass) or spread over the workers
  * of a RangeScanner. The parallel version splits splittable text at row starts into ranges, and
- * Parquet between row groups (a file of one row group stays with one thread) — several ranges per
+ * Parquet between row groups (or within them when they are few: see splitSource) — several ranges per
  * worker, so a worker slowed by other load does not hold up the rest — and runs:
  *
  *  pass 1   each range's cell checks and used-row counts; each worker's moments over its ranges.
@@ -24,7 +24,7 @@ import type { FirstPassPlan, FirstPassResult } from '../pipeline/firstPass';
 import { DUPLICATE_CHECK_CAPACITY } from '../pipeline/duplicateRows';
 import { secondPass } from '../pipeline/secondPass';
 import type { SecondPassInput, SecondPassResult } from '../pipeline/secondPass';
-import { parquetRowGroups } from '../read/parquet';
+import { parquetRowGroups, shareParquetDictionaries } from '../read/parquet';
 import { alignToRowStart } from '../read/textRange';
 import type { ByteRange, TableInspection } from '../read/types';
 import type { ByteSource, RunControl } from '../source';
@@ -62,17 +62,34 @@ export function canScanInParallel(scanner: RangeScanner | undefined, inspection:
 }
 
 /**
- * The shares of a source: text split at row starts; Parquet split between row groups (rows are
- * decoded a row group at a time, so a share is whole groups), about RANGES_PER_WORKER per worker;
- * null for a Parquet file of one row group, which one thread reads.
+ * The shares of a source: text split at row starts; Parquet split between row groups, about
+ * RANGES_PER_WORKER per worker, or when there are fewer than two groups per worker, each group
+ * split into one run of rows per worker; null when there is only one share.
  */
 async function splitSource(source: ByteSource, inspection: TableInspection, scanner: RangeScanner): Promise<SourceShare[] | null> {
   if (inspection.format !== 'parquet') {
     return (await splitAtRowStarts(source, scanner.workers, scanner.rangeBytes)).map((range) => ({ range, bytes: range.end - range.start }));
   }
   const groups = await parquetRowGroups(source);
-  if (groups.length < 2) return null;
   const total = groups.reduce((a, b) => a + b, 0);
+  if (groups.length < 2 * scanner.workers) {
+    // Too few groups to share out whole: each group in `workers` runs of rows. A run that starts
+    // inside a group passes over the rows before it (decompressed, not decoded into values).
+    const shares: SourceShare[] = [];
+    // One group: every thread needs all its dictionaries; hold them once.
+    const dictionaries = groups.length === 1 ? await shareParquetDictionaries(source) : null;
+    let start = 0;
+    for (const count of groups) {
+      const pieces = Math.min(scanner.workers, count);
+      for (let i = 0; i < pieces; i++) {
+        const from = start + Math.floor((i * count) / pieces);
+        const to = start + Math.floor(((i + 1) * count) / pieces);
+        if (to > from) shares.push({ rows: { start: from, end: to }, bytes: (source.size * (to - from)) / Math.max(1, total), ...(dictionaries ? { dictionaries } : {}) });
+      }
+      start += count;
+    }
+    return shares.length < 2 ? null : shares;
+  }
   const target = total / (scanner.workers * RANGES_PER_WORKER);
   const shares: SourceShare[] = [];
   let start = 0;

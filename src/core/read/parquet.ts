@@ -19,7 +19,7 @@ import { CELL_MISSING, CELL_TEXT } from './cellValue';
 import { ColumnSample } from './columnSample';
 import { isParquetMagic } from './format';
 import { asyncBufferOf, ParquetFeatureReader, textOf } from './parquetValues';
-import { FlatColumnCursor, type ColumnPiece, type CursorTuning } from './parquetCursor';
+import { ColumnBuffers, FlatColumnCursor, type ColumnPiece, type CursorTuning } from './parquetCursor';
 import { parquetColumns, type ParquetColumn } from './parquetSchema';
 import { PassProgress } from './progress';
 import { readCopy } from './readBytes';
@@ -43,7 +43,19 @@ interface OpenedParquet {
   metadata: FileMetaData;
   columns: ParquetColumn[];
   rows: number;
+  /**
+   * The decoded dictionary pages of the row group read last, by file offset: the next pass over the
+   * same group (a file of one large row group is read three times, its dictionaries can be most of
+   * its values) takes them from here instead of decoding them again beside the old ones.
+   */
+  dictionaries: { group: RowGroup | null; byOffset: Map<number, DecodedArray>; shared: Map<number, DecodedArray> };
 }
+
+/**
+ * Number dictionaries of a row group in memory shared by the threads that read it, by the file
+ * offset of their page (SharedArrayBuffer: posting them to a worker copies nothing).
+ */
+export type SharedDictionaries = [offset: number, values: Float64Array | Float32Array | Int32Array | Uint32Array][];
 
 /**
  * The footer of each source already opened: a parallel scan reads a file in many shares of row
@@ -79,7 +91,7 @@ async function readFooter(source: ByteSource): Promise<OpenedParquet> {
     throw invalid(`its footer cannot be decoded (${(error as Error).message}).`, 'Write or copy the file again completely.');
   }
   const columns = parquetColumns(metadata);
-  return { file, metadata, columns, rows: Number(metadata.num_rows) };
+  return { file, metadata, columns, rows: Number(metadata.num_rows), dictionaries: { group: null, byOffset: new Map(), shared: new Map() } };
 }
 
 /**
@@ -142,9 +154,24 @@ class ColumnRows {
     private readonly cursor: FlatColumnCursor | null,
   ) {}
 
-  static open(opened: OpenedParquet, source: ByteSource, group: RowGroup, groupStart: number, column: string, tuning: ParquetTuning): ColumnRows {
-    const cursor = FlatColumnCursor.open(source, opened.metadata, group, column, compressors, tuning);
+  static open(opened: OpenedParquet, source: ByteSource, group: RowGroup, groupStart: number, column: string, tuning: ParquetTuning, buffers?: ColumnBuffers): ColumnRows {
+    const kept = opened.dictionaries;
+    if (kept.group !== group) {
+      kept.group = group;
+      kept.byOffset = new Map(kept.shared);
+    }
+    const cursor = FlatColumnCursor.open(source, opened.metadata, group, column, compressors, tuning, kept.byOffset, buffers);
     return new ColumnRows(opened, source.name, column, groupStart, Number(group.num_rows), cursor);
+  }
+
+  /** Passes over the next `rows` rows of the group (the rows before a share's first). */
+  async skip(rows: number): Promise<void> {
+    try {
+      if (this.cursor) await this.cursor.skip(rows);
+    } catch (error) {
+      throw columnError(error, this.name, this.column, this.groupStart + this.row);
+    }
+    this.row += rows;
   }
 
   /** Calls onPiece for the next `rows` rows of the group, in order, with the batch position of each piece's first row. */
@@ -289,7 +316,12 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
   const reader = new ParquetFeatureReader(rules);
   const progress = new PassProgress(request.control, request.pass ?? 'rows', source.size);
   // Per needed column: the feature slots it fills, and whether it is the label.
-  const targets = needed.map((column) => ({ column, slots: features.flatMap((feature, slot) => (feature.name === column ? [slot] : [])), label: label?.name === column }));
+  const targets = needed.map((column) => ({
+    column,
+    slots: features.flatMap((feature, slot) => (feature.name === column ? [slot] : [])),
+    label: label?.name === column,
+    buffers: new ColumnBuffers(),
+  }));
 
   // Labels are interned in row order, so ids follow the order of first appearance.
   const labelId = (value: unknown): number => {
@@ -368,9 +400,9 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
       groupStart = groupEnd;
       continue;
     }
-    const columns = targets.map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning) }));
-    // Rows of the group before a share's first row are read and dropped.
-    for (const { rows } of columns) for (let skipped = groupStart; skipped < from; skipped += batchRows) await rows.read(Math.min(batchRows, from - skipped), () => undefined);
+    const columns = targets.map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning, target.buffers) }));
+    // Rows of the group before a share's first row are passed over.
+    if (from > groupStart) for (const { rows } of columns) await rows.skip(from - groupStart);
     for (let first = from; first < to; first += batchRows) {
       const n = Math.min(batchRows, to - first);
       if (d > 0) values.fill(NaN, 0, n * d);
@@ -396,6 +428,44 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
     });
   }
   return { rows: only ? scanned : opened.rows, labels: labelTexts.slice(), nonNumeric, nonNumericExamples, raggedRows: 0, raggedExamples: [], notes };
+}
+
+/**
+ * For a file of one row group read by several threads (each its own run of rows, every one needing
+ * every dictionary): the number dictionaries this thread has decoded for the group (inspect and
+ * earlier passes decode them) moved into shared memory, so that the threads hold them once. Null
+ * when there is nothing to share, or no shared memory (a browser page that is not cross-origin isolated).
+ */
+export async function shareParquetDictionaries(source: ByteSource): Promise<SharedDictionaries | null> {
+  if (typeof SharedArrayBuffer === 'undefined') return null;
+  const opened = await openParquet(source);
+  const kept = opened.dictionaries;
+  if (opened.metadata.row_groups.length !== 1 || kept.group !== opened.metadata.row_groups[0]) return null;
+  const shared: SharedDictionaries = [];
+  for (const [offset, values] of kept.byOffset) {
+    if (!isNumberArray(values)) continue;
+    let copy: NumberArray = values;
+    if (!(values.buffer instanceof SharedArrayBuffer)) {
+      const Type = values.constructor as new (buffer: SharedArrayBuffer) => NumberArray;
+      copy = new Type(new SharedArrayBuffer(values.byteLength));
+      copy.set(values as never);
+      kept.byOffset.set(offset, copy);
+    }
+    kept.shared.set(offset, copy);
+    shared.push([offset, copy]);
+  }
+  return shared.length > 0 ? shared : null;
+}
+
+/** Takes dictionaries shared by another thread (shareParquetDictionaries) for this thread's reads of the source. */
+export async function adoptParquetDictionaries(source: ByteSource, shared: SharedDictionaries): Promise<void> {
+  const kept = (await openParquet(source)).dictionaries;
+  for (const [offset, values] of shared) {
+    const known = kept.shared.get(offset);
+    if (known && isNumberArray(known) && known.buffer === values.buffer) continue;
+    kept.shared.set(offset, values);
+    kept.byOffset.set(offset, values);
+  }
 }
 
 /** The number of rows in each row group, in file order (a parallel scan splits between groups). */

@@ -73,6 +73,12 @@ interface StreamedPage {
   indexes: HybridStream | null;
 }
 
+/** Bytes of a streamed dictionary page copied at a time. */
+const DICTIONARY_PIECE = 64 * 1024;
+
+/** Rows of a streamed page skipped at a time (bounds the levels and page bytes held for a skip). */
+const SKIP_ROWS = 16_384;
+
 const NUMBER_ARRAYS = { DOUBLE: Float64Array, FLOAT: Float32Array, INT32: Int32Array, INT64: BigInt64Array } as const;
 type StreamedType = keyof typeof NUMBER_ARRAYS;
 
@@ -98,15 +104,25 @@ class MemoryBytes implements PageBytes {
   }
 }
 
+/**
+ * The working memory of a column's cursors, handed from one row group's cursor to the next (a scan
+ * of many row groups would otherwise allocate a read window and a decompression buffer for each
+ * column of each group, all garbage a group later).
+ */
+export class ColumnBuffers {
+  window: Uint8Array | null = null;
+  snappy: Uint8Array | null = null;
+  levels = new Uint8Array(0);
+  indexes = new Int32Array(0);
+  values: Float64Array | Float32Array | Int32Array | BigInt64Array | null = null;
+}
+
 export class FlatColumnCursor {
   private window: SourceWindow;
   private dictionary: DecodedArray | null = null;
   private whole: WholePage | null = null;
   private streamed: StreamedPage | null = null;
   private rowsDone = 0;
-  private levelBuffer = new Uint8Array(0);
-  private indexBuffer = new Int32Array(0);
-  private valueBuffer: Float64Array | Float32Array | Int32Array | BigInt64Array | null = null;
 
   private constructor(
     private readonly source: ByteSource,
@@ -119,12 +135,43 @@ export class FlatColumnCursor {
     private readonly chunkEnd: number,
     readonly rows: number,
     private readonly tuning: CursorTuning,
+    private readonly dictionaries: Map<number, DecodedArray> | undefined,
+    private readonly buffers: ColumnBuffers,
   ) {
-    this.window = new SourceWindow(source, start, chunkEnd, tuning.readBytes);
+    this.window = new SourceWindow(source, start, chunkEnd, tuning.readBytes, buffers.window);
+    buffers.window = null;
   }
 
-  /** A cursor over column `column` of `group`, or null when the column is not flat (nested, repeated) or lives in another file. */
-  static open(source: ByteSource, metadata: FileMetaData, group: RowGroup, column: string, compressors: Compressors, tuning: CursorTuning): FlatColumnCursor | null {
+  /** A window over the chunk from `from` on, in the memory of the one before (whose bytes are no longer needed). */
+  private moveWindow(from: number): void {
+    this.window = new SourceWindow(this.source, from, this.chunkEnd, this.tuning.readBytes, this.window.buffer);
+  }
+
+  /** The chunk's rows are all read: its buffers go to the next cursor over the same column. */
+  private release(): void {
+    if (this.rowsDone < this.rows) return;
+    this.buffers.window = this.window.buffer;
+  }
+
+  /** A streamed page's decompression buffer, kept for the next page. */
+  private keepSnappy(bytes: PageBytes): void {
+    if (bytes instanceof SnappyPageBytes) this.buffers.snappy = bytes.bytes;
+  }
+
+  /**
+   * A cursor over column `column` of `group`, or null when the column is not flat (nested, repeated) or lives in another file.
+   * `dictionaries`: decoded dictionary pages by file offset, kept by the caller to serve its next pass over the group.
+   */
+  static open(
+    source: ByteSource,
+    metadata: FileMetaData,
+    group: RowGroup,
+    column: string,
+    compressors: Compressors,
+    tuning: CursorTuning,
+    dictionaries?: Map<number, DecodedArray>,
+    buffers: ColumnBuffers = new ColumnBuffers(),
+  ): FlatColumnCursor | null {
     const chunk = group.columns.find((candidate) => candidate.meta_data?.path_in_schema.length === 1 && candidate.meta_data.path_in_schema[0] === column);
     const meta = chunk?.meta_data;
     if (chunk === undefined || meta === undefined || chunk.file_path !== undefined) return null;
@@ -134,7 +181,7 @@ export class FlatColumnCursor {
     const decoder = { pathInSchema: [column], type: meta.type, element, schemaPath, codec: meta.codec, parsers: DEFAULT_PARSERS, compressors, utf8: true };
     const start = Number(meta.dictionary_page_offset || meta.data_page_offset);
     const end = Math.min(source.size, start + Number(meta.total_compressed_size));
-    return new FlatColumnCursor(source, decoder, element, getMaxDefinitionLevel(schemaPath), meta.codec, compressors, start, end, Number(group.num_rows), tuning);
+    return new FlatColumnCursor(source, decoder, element, getMaxDefinitionLevel(schemaPath), meta.codec, compressors, start, end, Number(group.num_rows), tuning, dictionaries, buffers);
   }
 
   /** The next rows, at most maxRows and at least one while rows remain (throws when the data ends early). */
@@ -142,6 +189,7 @@ export class FlatColumnCursor {
     while (this.whole === null && this.streamed === null) await this.readPage();
     const piece = this.whole ? this.nextWhole(this.whole, maxRows) : await this.nextStreamed(this.streamed!, maxRows);
     this.rowsDone += piece.rows;
+    this.release();
     return piece;
   }
 
@@ -174,8 +222,8 @@ export class FlatColumnCursor {
       let present = rows;
       let levels: Uint8Array | null = null;
       if (page.levels) {
-        if (this.levelBuffer.length < rows) this.levelBuffer = new Uint8Array(rows);
-        levels = this.levelBuffer;
+        if (this.buffers.levels.length < rows) this.buffers.levels = new Uint8Array(rows);
+        levels = this.buffers.levels;
         await page.levels.read(rows, levels, 0);
         present = 0;
         for (let i = 0; i < rows; i++) present += levels[i];
@@ -184,40 +232,90 @@ export class FlatColumnCursor {
       let values: ColumnPiece['values'] = null;
       let indexes: Int32Array | null = null;
       if (page.indexes) {
-        if (this.indexBuffer.length < present) this.indexBuffer = new Int32Array(Math.max(present, 1024));
-        indexes = this.indexBuffer;
+        if (this.buffers.indexes.length < present) this.buffers.indexes = new Int32Array(Math.max(present, 1024));
+        indexes = this.buffers.indexes;
         await page.indexes.read(present, indexes, 0);
         const size = this.dictionary?.length ?? 0;
         for (let i = 0; i < present; i++) if (indexes[i] >= size) throw new StreamDamaged(`a dictionary index ${indexes[i]} beyond the ${size} entries`);
       } else {
         const Type = NUMBER_ARRAYS[this.decoder.type as StreamedType];
-        if (!(this.valueBuffer instanceof Type) || this.valueBuffer.length < present) this.valueBuffer = new Type(Math.max(present, 1024));
+        if (!(this.buffers.values instanceof Type) || this.buffers.values.length < present) this.buffers.values = new Type(Math.max(present, 1024));
         const width = Type.BYTES_PER_ELEMENT;
         await page.bytes.ensure(present * width);
-        new Uint8Array(this.valueBuffer.buffer, 0, present * width).set(page.bytes.bytes.subarray(page.bytes.position, page.bytes.position + present * width));
+        new Uint8Array(this.buffers.values.buffer, 0, present * width).set(page.bytes.bytes.subarray(page.bytes.position, page.bytes.position + present * width));
         page.bytes.position += present * width;
-        values = this.valueBuffer;
+        values = this.buffers.values;
       }
       page.rowAt += rows;
       if (page.rowAt >= page.rows) this.finishStreamed(page);
       return { rows, levels, levelStart: 0, presentLevel: this.presentLevel, values, indexes, dictionary: indexes ? this.dictionary : null, valueStart: 0 };
     } catch (error) {
       if (!(error instanceof StreamFallback)) throw error;
-      // Decode the page whole from the file and go on from the same row.
-      const compressed = await readExactly(this.source, page.dataOffset, page.header.compressed_page_size);
-      const whole = this.decodeWhole(compressed, page.header);
-      this.streamed = null;
-      this.window = new SourceWindow(this.source, page.dataOffset + page.header.compressed_page_size, this.chunkEnd, this.tuning.readBytes);
-      this.whole = whole;
-      if (page.rowAt > 0) this.nextWhole(whole, page.rowAt);
-      return this.nextWhole(whole, maxRows);
+      return this.nextWhole(await this.fallBack(page), maxRows);
+    }
+  }
+
+  /** Decodes a streamed page whole from the file, positioned at the row the stream had reached. */
+  private async fallBack(page: StreamedPage): Promise<WholePage> {
+    const compressed = await readExactly(this.source, page.dataOffset, page.header.compressed_page_size);
+    const whole = this.decodeWhole(compressed, page.header);
+    this.streamed = null;
+    this.keepSnappy(page.bytes);
+    this.moveWindow(page.dataOffset + page.header.compressed_page_size);
+    this.whole = whole;
+    if (page.rowAt > 0) this.nextWhole(whole, page.rowAt);
+    return whole;
+  }
+
+  /**
+   * Passes over the next `rows` rows, for a share of the row group that starts inside it: nothing is
+   * converted or gathered, and bit-packed dictionary indexes are stepped over by their bytes (the
+   * page is still decompressed up to the share's first row).
+   */
+  async skip(rows: number): Promise<void> {
+    let left = rows;
+    while (left > 0) {
+      while (this.whole === null && this.streamed === null) await this.readPage();
+      const done = this.whole ? this.nextWhole(this.whole, left).rows : await this.skipStreamed(this.streamed!, Math.min(left, SKIP_ROWS));
+      this.rowsDone += done;
+      left -= done;
+    }
+    this.release();
+  }
+
+  /** Skips up to maxRows rows of a streamed page; 0 when the page had to be decoded whole instead (then skipped as whole). */
+  private async skipStreamed(page: StreamedPage, maxRows: number): Promise<number> {
+    const rows = Math.min(maxRows, page.rows - page.rowAt);
+    try {
+      let present = rows;
+      if (page.levels) {
+        if (this.buffers.levels.length < rows) this.buffers.levels = new Uint8Array(rows);
+        const levels = this.buffers.levels;
+        await page.levels.read(rows, levels, 0);
+        present = 0;
+        for (let i = 0; i < rows; i++) present += levels[i];
+      }
+      if (page.indexes) await page.indexes.skip(present);
+      else {
+        const width = NUMBER_ARRAYS[this.decoder.type as StreamedType].BYTES_PER_ELEMENT;
+        await page.bytes.ensure(present * width);
+        page.bytes.position += present * width;
+      }
+      page.rowAt += rows;
+      if (page.rowAt >= page.rows) this.finishStreamed(page);
+      return rows;
+    } catch (error) {
+      if (!(error instanceof StreamFallback)) throw error;
+      await this.fallBack(page);
+      return 0;
     }
   }
 
   private finishStreamed(page: StreamedPage): void {
     this.streamed = null;
     const pageEnd = page.dataOffset + page.header.compressed_page_size;
-    if (this.window.position !== pageEnd) this.window = new SourceWindow(this.source, pageEnd, this.chunkEnd, this.tuning.readBytes);
+    this.keepSnappy(page.bytes);
+    if (this.window.position !== pageEnd) this.moveWindow(pageEnd);
   }
 
   private async readHeader(): Promise<PageHeader> {
@@ -243,10 +341,15 @@ export class FlatColumnCursor {
     const dataOffset = this.window.position;
     const size = header.compressed_page_size;
     if (header.type === 'DICTIONARY_PAGE') {
-      const compressed = await this.window.take(size);
-      const page = decompressPage(compressed, Number(header.uncompressed_page_size), this.codec, this.compressors);
-      const reader = { view: new DataView(page.buffer, page.byteOffset, page.byteLength), offset: 0 };
-      this.dictionary = convert(readPlain(reader, this.decoder.type, header.dictionary_page_header?.num_values ?? 0, this.element.type_length), this.decoder);
+      // Decoded already by an earlier pass over this row group: the same values (never written to).
+      const known = this.dictionaries?.get(dataOffset);
+      if (known) {
+        this.window.discard(size);
+        this.dictionary = known;
+        return;
+      }
+      this.dictionary = (await this.streamedDictionary(header, dataOffset)) ?? this.wholeDictionary(await this.window.take(size), header);
+      this.dictionaries?.set(dataOffset, this.dictionary);
       return;
     }
     if (header.type !== 'DATA_PAGE' && header.type !== 'DATA_PAGE_V2') {
@@ -259,6 +362,53 @@ export class FlatColumnCursor {
       return;
     }
     this.whole = this.decodeWhole(await this.window.take(size), header);
+  }
+
+  private wholeDictionary(compressed: Uint8Array, header: PageHeader): DecodedArray {
+    const page = decompressPage(compressed, Number(header.uncompressed_page_size), this.codec, this.compressors);
+    const reader = { view: new DataView(page.buffer, page.byteOffset, page.byteLength), offset: 0 };
+    return convert(readPlain(reader, this.decoder.type, header.dictionary_page_header?.num_values ?? 0, this.element.type_length), this.decoder);
+  }
+
+  /**
+   * A large dictionary of plain numbers decompressed as it is read, straight into its array (in
+   * shared memory where there is one, so that threads reading the same row group can hold it once:
+   * shareParquetDictionaries), without the page's compressed and decompressed copies beside it
+   * (DuckDB's dictionaries can be megabytes a column). Null when it is read whole instead.
+   */
+  private async streamedDictionary(header: PageHeader, dataOffset: number): Promise<DecodedArray | null> {
+    const size = header.compressed_page_size;
+    const count = header.dictionary_page_header?.num_values ?? 0;
+    if (size <= this.tuning.streamPageBytes || (this.codec !== 'UNCOMPRESSED' && this.codec !== 'SNAPPY')) return null;
+    if (!(this.decoder.type in NUMBER_ARRAYS) || !plainNumbers(this.element)) return null;
+    const Type = NUMBER_ARRAYS[this.decoder.type as StreamedType];
+    const length = count * Type.BYTES_PER_ELEMENT;
+    if (header.uncompressed_page_size < length) throw new StreamDamaged(`a dictionary page of ${header.uncompressed_page_size} bytes for ${count} values`);
+    const memory = typeof SharedArrayBuffer === 'undefined' ? new ArrayBuffer(length) : new SharedArrayBuffer(length);
+    const target = new Uint8Array(memory);
+    try {
+      const bytes: PageBytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(this.window, size, header.uncompressed_page_size, this.tuning.snappyHistoryBytes, this.takeSnappy()) : new PlainPageBytes(this.window, size);
+      for (let filled = 0; filled < length; ) {
+        const n = Math.min(DICTIONARY_PIECE, length - filled);
+        await bytes.ensure(n);
+        target.set(bytes.bytes.subarray(bytes.position, bytes.position + n), filled);
+        bytes.position += n;
+        filled += n;
+      }
+      this.keepSnappy(bytes);
+    } catch (error) {
+      if (!(error instanceof StreamFallback)) throw error;
+      this.moveWindow(dataOffset + size);
+      return this.wholeDictionary(await readExactly(this.source, dataOffset, size), header);
+    }
+    if (this.window.position !== dataOffset + size) this.moveWindow(dataOffset + size);
+    return new Type(memory as ArrayBuffer) as DecodedArray;
+  }
+
+  private takeSnappy(): Uint8Array | undefined {
+    const kept = this.buffers.snappy ?? undefined;
+    this.buffers.snappy = null;
+    return kept;
   }
 
   private streamable(header: PageHeader, size: number): boolean {
@@ -274,7 +424,7 @@ export class FlatColumnCursor {
     const data = header.data_page_header!;
     const size = header.compressed_page_size;
     try {
-      const bytes: PageBytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(this.window, size, header.uncompressed_page_size, this.tuning.snappyHistoryBytes) : new PlainPageBytes(this.window, size);
+      const bytes: PageBytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(this.window, size, header.uncompressed_page_size, this.tuning.snappyHistoryBytes, this.takeSnappy()) : new PlainPageBytes(this.window, size);
       let levels: HybridStream | null = null;
       if (this.presentLevel === 1) {
         await bytes.ensure(4);
@@ -295,7 +445,7 @@ export class FlatColumnCursor {
       this.streamed = { rows: data.num_values, rowAt: 0, dataOffset, header, bytes, levels, indexes };
     } catch (error) {
       if (!(error instanceof StreamFallback)) throw error;
-      this.window = new SourceWindow(this.source, dataOffset + size, this.chunkEnd, this.tuning.readBytes);
+      this.moveWindow(dataOffset + size);
       this.whole = this.decodeWhole(await readExactly(this.source, dataOffset, size), header);
     }
   }

@@ -35,9 +35,11 @@ export class SourceWindow {
     from: number,
     readonly to: number,
     private readonly chunkBytes: number,
+    /** Memory to reuse (a window before this one, whose bytes are no longer needed). */
+    reuse?: Uint8Array | null,
   ) {
     this.position = from;
-    this.buffer = new Uint8Array(0);
+    this.buffer = reuse ?? new Uint8Array(0);
   }
 
   get available(): number {
@@ -78,6 +80,17 @@ export class SourceWindow {
   skip(n: number): void {
     this.start += n;
     this.position += n;
+  }
+
+  /** Passes over the next n bytes without reading what is not buffered yet. */
+  discard(n: number): void {
+    if (n > this.remaining) throw new StreamDamaged(`a page of ${n} bytes runs past the end of its column chunk`);
+    if (n <= this.available) {
+      this.skip(n);
+      return;
+    }
+    this.position += n;
+    this.start = this.end = 0;
   }
 
   /** A fresh copy of the next n bytes (read past the buffer when they do not fit it). */
@@ -170,14 +183,18 @@ export class SnappyPageBytes implements PageBytes {
     compressedSize: number,
     private readonly size: number,
     private readonly history: number,
+    reuse: Uint8Array | undefined,
   ) {
     this.inputLeft = compressedSize;
-    this.bytes = new Uint8Array(history + 2 * OUTPUT_CHUNK);
+    this.bytes = reuse && reuse.length >= history + 2 * OUTPUT_CHUNK ? reuse : new Uint8Array(history + 2 * OUTPUT_CHUNK);
   }
 
-  /** `history`: output kept behind the last byte written for copies (64 KiB; less only to test the fallback). */
-  static async open(window: SourceWindow, compressedSize: number, size: number, history = HISTORY): Promise<SnappyPageBytes> {
-    const stream = new SnappyPageBytes(window, compressedSize, size, history);
+  /**
+   * `history`: output kept behind the last byte written for copies (64 KiB; less only to test the fallback).
+   * `reuse`: the buffer of a page stream that has ended, to decompress into.
+   */
+  static async open(window: SourceWindow, compressedSize: number, size: number, history = HISTORY, reuse?: Uint8Array): Promise<SnappyPageBytes> {
+    const stream = new SnappyPageBytes(window, compressedSize, size, history, reuse);
     await window.ensure(Math.min(5, compressedSize));
     let length = 0;
     let shift = 0;
@@ -313,6 +330,9 @@ export class SnappyPageBytes implements PageBytes {
   }
 }
 
+/** Bit-packed groups (8 values each) stepped over at a time by `skip`: bounds the page bytes made readable at once. */
+const SKIP_GROUPS = 4096;
+
 /**
  * The RLE / bit-packed hybrid (Parquet's Encodings.md) decoded a few values at a time from a page
  * stream, for widths up to 24 bits (wider: StreamFallback).
@@ -350,6 +370,41 @@ export class HybridStream {
         done += take;
       } else if (this.packedGroupsLeft > 0) {
         await this.unpack(Math.min(this.packedGroupsLeft, Math.ceil((count - done) / 8), this.scratch.length / 8));
+      } else {
+        await this.readRunHeader();
+      }
+    }
+  }
+
+  /**
+   * Passes over `count` values without producing them: an RLE run is counted down, whole groups of
+   * a bit-packed run are stepped over by their bytes (a scan starting inside a page skips the rows
+   * before it at a fraction of the cost of reading them).
+   */
+  async skip(count: number): Promise<void> {
+    let left = count;
+    while (left > 0) {
+      if (this.scratchAt < this.scratchEnd) {
+        const take = Math.min(left, this.scratchEnd - this.scratchAt);
+        this.scratchAt += take;
+        left -= take;
+      } else if (this.rleLeft > 0) {
+        const take = Math.min(left, this.rleLeft);
+        this.rleLeft -= take;
+        left -= take;
+      } else if (this.packedGroupsLeft > 0) {
+        const groups = Math.min(this.packedGroupsLeft, Math.floor(left / 8), SKIP_GROUPS);
+        if (groups === 0) {
+          await this.unpack(1);
+          continue;
+        }
+        const page = this.page;
+        const bytes = Math.min(groups * this.width, this.bytesLeft, page.left);
+        await page.ensure(bytes);
+        page.position += bytes;
+        this.bytesLeft -= bytes;
+        this.packedGroupsLeft -= groups;
+        left -= groups * 8;
       } else {
         await this.readRunHeader();
       }

@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { CancelledError, DataError } from '../../../src/core/errors';
 import { inspectTable, scanTable } from '../../../src/core/read/index';
-import { DEFAULT_PARQUET_TUNING, scanParquet, type ParquetTuning } from '../../../src/core/read/parquet';
+import { adoptParquetDictionaries, DEFAULT_PARQUET_TUNING, scanParquet, shareParquetDictionaries, type ParquetTuning } from '../../../src/core/read/parquet';
 import type { ScanSummary, TableInspection } from '../../../src/core/read/types';
 import { memorySource, type ByteSource, type Progress } from '../../../src/core/source';
 
@@ -40,7 +40,7 @@ const NUMERIC = ['vibration_rms', 'kurtosis', 'acoustic_db', 'impeller_rpm', 'ru
 /** Every page decoded as it is read (not whole), from reads of 64 bytes: the streaming path and its window edges. */
 const STREAMED: Partial<ParquetTuning> = { streamPageBytes: 0, readBytes: 64 };
 
-async function scanAll(bytes: Uint8Array, name: string, inspection: TableInspection, featureNames: string[], tuning: Partial<ParquetTuning> = {}) {
+async function scanAll(bytes: Uint8Array, name: string, inspection: TableInspection, featureNames: string[], tuning: Partial<ParquetTuning> = {}, rows?: { start: number; end: number }, source: ByteSource = memorySource(name, bytes)) {
   const index = (column: string): number => inspection.columns.findIndex((c) => c.name === column);
   const values: number[] = [];
   const labels: number[] = [];
@@ -49,9 +49,10 @@ async function scanAll(bytes: Uint8Array, name: string, inspection: TableInspect
   let dictionary: readonly string[] = [];
   const summary: ScanSummary = await scanParquet(
     {
-      source: memorySource(name, bytes),
+      source,
       inspection,
       plan: { label: index('fault'), features: featureNames.map(index) },
+      ...(rows ? { rows } : {}),
       onBatch: (batch, batchLabels) => {
         assert.equal(batch.lines, undefined);
         firstRows.push(batch.firstRow);
@@ -287,6 +288,44 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
       }
       // First appearance: row 0 is missing (0 % 101), then rows 1, 2, 3.
       assert.deepEqual(streamed.dictionary, ['cavitation', 'seal leak', 'healthy']);
+
+      // Runs of rows inside the one group (as the threads of a parallel scan read it), each starting
+      // with a skip, read the same values; every run after the first through the same source takes the
+      // dictionaries the runs before decoded, also once a snappy copy reaching too far back forces a
+      // page to be read whole in the middle of a skip.
+      for (const tuning of [{ streamPageBytes: 0, readBytes: 1000, batchRows: 4096 }, { streamPageBytes: 0, readBytes: 1000, batchRows: 1000, snappyHistoryBytes: 4096 }]) {
+        const source = memorySource('large.parquet', bytes);
+        const cuts = [0, 1, 77_777, 150_000, 150_001, 299_999, ROWS];
+        for (let i = cuts.length - 2; i >= 0; i--) {
+          const run = await scanAll(bytes, 'large.parquet', inspection, features, tuning, { start: cuts[i]!, end: cuts[i + 1]! }, source);
+          assert.equal(run.summary.rows, cuts[i + 1]! - cuts[i]!);
+          assert.equal(run.firstRows[0], cuts[i]);
+          for (let row = cuts[i]!; row < cuts[i + 1]!; row++) {
+            for (let slot = 0; slot < features.length; slot++) {
+              const got = run.values[(row - cuts[i]!) * features.length + slot];
+              if (!Object.is(got, streamed.values[row * features.length + slot])) assert.fail(`${features[slot]} row ${row} in run ${cuts[i]}–${cuts[i + 1]}: ${got}`);
+            }
+            const label = run.labels[row - cuts[i]!]!;
+            const want = streamed.labels[row]!;
+            if ((label === -1 ? null : run.dictionary[label]) !== (want === -1 ? null : streamed.dictionary[want])) assert.fail(`fault row ${row} in run ${cuts[i]}–${cuts[i + 1]}`);
+          }
+        }
+      }
+
+      // The number dictionaries one thread decoded, shared with another (through a structured clone,
+      // as postMessage passes them): in shared memory, and the other's run reads the same values with them.
+      const decoding = memorySource('large.parquet', bytes);
+      await scanAll(bytes, 'large.parquet', inspection, features, { streamPageBytes: 0, readBytes: 1000, batchRows: 4096 }, { start: 0, end: 10 }, decoding);
+      const shared = await shareParquetDictionaries(decoding);
+      assert.ok(shared && shared.length > 0, 'number dictionaries to share');
+      for (const [, values] of shared) assert.ok(values.buffer instanceof SharedArrayBuffer);
+      const adopting = memorySource('large.parquet', bytes);
+      await adoptParquetDictionaries(adopting, structuredClone(shared));
+      const half = await scanAll(bytes, 'large.parquet', inspection, features, { streamPageBytes: 0, readBytes: 1000, batchRows: 4096 }, { start: ROWS / 2, end: ROWS }, adopting);
+      assert.ok(
+        half.values.every((value, i) => Object.is(value, streamed.values[(ROWS / 2) * features.length + i])),
+        'the values read with adopted dictionaries',
+      );
     });
   }
 });

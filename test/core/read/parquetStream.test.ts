@@ -114,6 +114,18 @@ describe('parquet streams', () => {
         at += n;
       }
       assert.deepEqual(Array.from(out), values, `width ${width}`);
+      // Skips (inside runs, across them, whole bit-packed groups) between reads land on the same values.
+      const skipping = new HybridStream(new PlainPageBytes(new SourceWindow(memorySource('runs', bytes), 0, bytes.length, 13), bytes.length), width, bytes.length);
+      const piece = new Int32Array(50);
+      for (let at = 0; at < values.length; ) {
+        const skip = Math.min(Math.floor(random() * 400), values.length - at);
+        await skipping.skip(skip);
+        at += skip;
+        const n = Math.min(1 + Math.floor(random() * 50), values.length - at);
+        await skipping.read(n, piece, 0);
+        assert.deepEqual(Array.from(piece.subarray(0, n)), values.slice(at, at + n), `width ${width}, ${n} values after skipping to ${at}`);
+        at += n;
+      }
     }
     assert.throws(() => new HybridStream(new (class {
       bytes = new Uint8Array(0); position = 0; end = 0; left = 0; async ensure(): Promise<void> {}
