@@ -56,7 +56,8 @@ export interface KernelResult {
   /**
    * Median seconds of the same rows split over two worker threads, each started, holding its half
    * and warmed up before the clock starts; the clock covers the update, the moments handed back
-   * (transferred, not copied) and the merge, as the parallel pass 1 needs them.
+   * (as the parallel pass 1's workers hand them: finished accumulators, their scatters in shared
+   * memory, the small arrays transferred) and the merge in place, as the parallel pass 1 needs them.
    */
   twoThreadSeconds: number;
   /** CPU seconds of the whole process (both workers and the merging thread) over that span: on a shared machine the cost of the split without the other load's waiting. */
@@ -76,7 +77,7 @@ export interface HalfTask {
 
 /**
  * In a worker thread started by twoThreads: reads its half of the rows, warms up, and on 'go'
- * accumulates them and hands the moments back by transfer.
+ * accumulates them and hands the moments back (MomentsAccumulator.finish: the scatters shared, not copied).
  */
 export function kernelHalfWorker(task: HalfTask): void {
   const values = readRows(task.path, task.n, task.d, task.first);
@@ -88,7 +89,7 @@ export function kernelHalfWorker(task: HalfTask): void {
   parentPort!.once('message', () => {
     const accumulator = new MomentsAccumulator(features);
     accumulator.add(values, ids, task.n, labels);
-    const moments = accumulator.result();
+    const moments = accumulator.finish();
     parentPort!.postMessage(moments, momentsBuffers(moments));
   });
 }
@@ -101,7 +102,7 @@ export function kernelHalfWorker(task: HalfTask): void {
 function warmUp(features: string[], values: Float64Array, ids: Int32Array, n: number, labels: string[]): void {
   const warm = new MomentsAccumulator(features);
   warm.add(values, ids, n, labels);
-  warm.result();
+  warm.finish();
 }
 
 /** Seconds (wall and CPU) to accumulate the rows in two threads (one half each) and merge their moments. */
@@ -149,13 +150,13 @@ export async function measureKernel(path: string, n: number, d: number, classes:
   warmUp(features, values, ids, n, labels);
   const wall: number[] = [];
   const cpu: number[] = [];
-  let accumulator = new MomentsAccumulator(features);
+  let moments: Moments | null = null;
   for (let round = 0; round < 3; round++) {
-    accumulator = new MomentsAccumulator(features);
+    const accumulator = new MomentsAccumulator(features);
     const started = performance.now();
     const used = process.cpuUsage();
     accumulator.add(values, ids, n, labels);
-    accumulator.result();
+    moments = accumulator.finish();
     const spent = process.cpuUsage(used);
     cpu.push((spent.user + spent.system) / 1e6);
     wall.push((performance.now() - started) / 1000);
@@ -177,16 +178,15 @@ export async function measureKernel(path: string, n: number, d: number, classes:
     twoThreadCpuSeconds: median(twoCpu),
   };
   if (fit) {
-    const moments = accumulator.result();
     const options = resolveOptions({});
     const lda: number[] = [];
     const whole: number[] = [];
     for (let round = 0; round < 3; round++) {
       let started = performance.now();
-      solveLda(moments, { solver: options.solver, priors: options.priors });
+      solveLda(moments!, { solver: options.solver, priors: options.priors });
       lda.push((performance.now() - started) / 1000);
       started = performance.now();
-      fitMoments(moments, options);
+      fitMoments(moments!, options);
       whole.push((performance.now() - started) / 1000);
     }
     result.solveLdaSeconds = median(lda);

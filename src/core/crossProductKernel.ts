@@ -325,10 +325,15 @@ function centreRowsBody(size: number): number[] {
   return code;
 }
 
-function rowModuleBytes(size: number): Uint8Array {
+/** Pages of 64 KiB a 32-bit memory can have: the declared maximum of a shared memory import. */
+const MAX_PAGES = 65536;
+
+function rowModuleBytes(size: number, shared: boolean): Uint8Array {
   const params = (count: number): number[] => [0x60, ...vector(Array.from({ length: count }, () => [I32])), 0];
   const type = section(1, vector([params(3), params(6), params(8)]));
-  const imports = section(2, vector([[...utf8('env'), ...utf8('memory'), 0x02, 0x00, 0x01]]));
+  // Memory type limits: 0x00 minimum only; 0x03 shared with a maximum (threads proposal, WebAssembly 2.0 engines).
+  const limits = shared ? [0x03, ...unsignedLeb(1), ...unsignedLeb(MAX_PAGES)] : [0x00, 0x01];
+  const imports = section(2, vector([[...utf8('env'), ...utf8('memory'), 0x02, ...limits]]));
   const functions = section(3, vector([[0], [0], [1], [2]]));
   const exports = section(7, vector([
     [...utf8('update'), 0x00, 0],
@@ -352,7 +357,7 @@ interface WasmApi {
   validate(bytes: Uint8Array): boolean;
   Module: new (bytes: Uint8Array) => WasmModule;
   Instance: new (module: WasmModule, imports: object) => { exports: Record<string, unknown> };
-  Memory: new (descriptor: { initial: number }) => { buffer: ArrayBuffer };
+  Memory: new (descriptor: { initial: number; maximum?: number; shared?: boolean }) => { buffer: ArrayBuffer };
 }
 
 const compiled = new Map<number, WasmModule | null>();
@@ -467,6 +472,13 @@ export interface ScatterKernel {
   readonly size: number;
   readonly capacity: number;
   readonly scatter: Float64Array;
+  /**
+   * Whether `scatter`'s memory may become a Moments' scatter as it is: a SharedArrayBuffer (the
+   * kernel's WebAssembly memory made shared: posted to another thread, it is shared, not copied)
+   * or a plain ArrayBuffer of its own. An unshared WebAssembly memory can be neither transferred
+   * nor detached, and a copy of it would carry the block along.
+   */
+  readonly scatterOwnable: boolean;
   readonly block: Float64Array;
   readonly vector: Float64Array;
   readonly product: Float64Array;
@@ -498,21 +510,37 @@ export interface ScatterKernel {
 const SIZE_VECTORS = ['shift', 'min', 'max', 'sums', 'mean', 'delta', 'cubic', 'timesDelta'] as const;
 const ROW_VECTORS = ['rowNorms', 'projections'] as const;
 
-const rowModules = new Map<number, WasmModule | null>();
+const rowModules = new Map<string, WasmModule | null>();
 
-function rowModule(size: number): WasmModule | null {
-  const known = rowModules.get(size);
+function rowModule(size: number, shared: boolean): WasmModule | null {
+  const key = `${size} ${shared}`;
+  const known = rowModules.get(key);
   if (known !== undefined) return known;
   const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
   let module: WasmModule | null = null;
   try {
-    const bytes = rowModuleBytes(size);
+    const bytes = rowModuleBytes(size, shared);
     if (wasm && wasm.validate(bytes)) module = new wasm.Module(bytes);
   } catch {
     module = null;
   }
-  rowModules.set(size, module);
+  rowModules.set(key, module);
   return module;
+}
+
+/** Whether this engine makes shared WebAssembly memories (a browser page only when cross-origin isolated); asked once. */
+let sharedMemories: boolean | undefined;
+
+function canShareMemory(): boolean {
+  if (sharedMemories === undefined) {
+    const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
+    try {
+      sharedMemories = !!wasm && typeof SharedArrayBuffer === 'function' && new wasm.Memory({ initial: 1, maximum: 1, shared: true }).buffer instanceof SharedArrayBuffer;
+    } catch {
+      sharedMemories = false;
+    }
+  }
+  return sharedMemories;
 }
 
 type Views = Record<(typeof SIZE_VECTORS)[number] | (typeof ROW_VECTORS)[number], Float64Array>;
@@ -542,6 +570,7 @@ class SimdScatterKernel implements ScatterKernel {
     readonly d: number,
     readonly size: number,
     readonly capacity: number,
+    readonly scatterOwnable: boolean,
   ) {
     const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly!;
     const blockAt = size * size * 8;
@@ -550,7 +579,8 @@ class SimdScatterKernel implements ScatterKernel {
     const vectorsAt = productAt + size * 8;
     const rowsAt = vectorsAt + SIZE_VECTORS.length * size * 8;
     const bytes = rowsAt + ROW_VECTORS.length * capacity * 8;
-    const memory = new wasm.Memory({ initial: Math.max(1, Math.ceil(bytes / PAGE)) });
+    const pages = Math.max(1, Math.ceil(bytes / PAGE));
+    const memory = new wasm.Memory(scatterOwnable ? { initial: pages, maximum: pages, shared: true } : { initial: pages });
     const { exports } = new wasm.Instance(module, { env: { memory } });
     this.run = exports.update as SimdScatterKernel['run'];
     this.multiply = exports.multiplyUpper as SimdScatterKernel['multiply'];
@@ -589,6 +619,7 @@ class SimdScatterKernel implements ScatterKernel {
 }
 
 class PlainScatterKernel implements ScatterKernel {
+  readonly scatterOwnable = true;
   readonly scatter: Float64Array;
   readonly block: Float64Array;
   readonly vector: Float64Array;
@@ -694,6 +725,9 @@ class PlainScatterKernel implements ScatterKernel {
  */
 export function createScatterKernel(d: number, capacity: number, plain = false): ScatterKernel {
   const size = Math.max(TILE, Math.ceil(d / TILE) * TILE);
-  const module = plain ? null : rowModule(size);
-  return module ? new SimdScatterKernel(module, d, size, capacity) : new PlainScatterKernel(d, size, capacity);
+  if (plain) return new PlainScatterKernel(d, size, capacity);
+  const shared = canShareMemory() ? rowModule(size, true) : null;
+  if (shared) return new SimdScatterKernel(shared, d, size, capacity, true);
+  const module = rowModule(size, false);
+  return module ? new SimdScatterKernel(module, d, size, capacity, false) : new PlainScatterKernel(d, size, capacity);
 }

@@ -129,10 +129,32 @@ function mergeClass(a: ClassMoments, b: ClassMoments, d: number, scatter: Float6
   for (let i = 0; i < d; i++) delta[i] = b.mean[i] - a.mean[i];
   const eA = delta.map((v) => (-b.count / n) * v);
   const eB = delta.map((v) => (a.count / n) * v);
-  const sAe = fullMultiply(a.scatter, d, eA);
-  const sBe = fullMultiply(b.scatter, d, eB);
   const trA = trace(a.scatter, d);
   const trB = trace(b.scatter, d);
+  // S = S_A + S_B + (n_A n_B / n) δ δᵀ, written row by row, with S_A e_A and S_B e_B (as
+  // fullMultiply sums them) taken from the same rows on the way: one pass over the two d × d
+  // matrices instead of three. Row i of S_A is read before it is overwritten, and only row i of
+  // S_A enters (S_A e_A)_i, so `scatter` may be a's own.
+  const weight = (a.count * b.count) / n;
+  const aScatter = a.scatter;
+  const bScatter = b.scatter;
+  const sAe = new Float64Array(d);
+  const sBe = new Float64Array(d);
+  for (let i = 0; i < d; i++) {
+    const row = i * d;
+    const w = weight * delta[i];
+    let sumA = 0;
+    let sumB = 0;
+    for (let j = 0; j < d; j++) {
+      const valueA = aScatter[row + j];
+      const valueB = bScatter[row + j];
+      sumA += valueA * eA[j];
+      sumB += valueB * eB[j];
+      scatter[row + j] = valueA + valueB + w * delta[j];
+    }
+    sAe[i] = sumA;
+    sBe[i] = sumB;
+  }
   const cubicA = new Float64Array(d);
   const cubicB = new Float64Array(d);
   shiftCubic(cubicA, a.cubic, sAe, trA, a.count, eA);
@@ -140,14 +162,6 @@ function mergeClass(a: ClassMoments, b: ClassMoments, d: number, scatter: Float6
   const quartic =
     shiftQuartic(a.quartic, dotProduct(eA, sAe), dotProduct(a.cubic, eA), trA, a.count, dotProduct(eA, eA)) +
     shiftQuartic(b.quartic, dotProduct(eB, sBe), dotProduct(b.cubic, eB), trB, b.count, dotProduct(eB, eB));
-  const weight = (a.count * b.count) / n;
-  const aScatter = a.scatter;
-  const bScatter = b.scatter;
-  for (let i = 0; i < d; i++) {
-    const row = i * d;
-    const w = weight * delta[i];
-    for (let j = 0; j < d; j++) scatter[row + j] = aScatter[row + j] + bScatter[row + j] + w * delta[j];
-  }
   const mean = new Float64Array(d);
   for (let i = 0; i < d; i++) mean[i] = a.mean[i] + (b.count / n) * delta[i];
   return {

@@ -142,15 +142,17 @@ class ClassAccumulator {
     this.buffered = 0;
   }
 
-  snapshot(): ClassMoments {
+  /** With `final`, the scatter is formed in the kernel's memory where that may be handed on (the accumulator is then done). */
+  snapshot(final: boolean): ClassMoments {
     const d = this.d;
     const mean = new Float64Array(d);
     for (let i = 0; i < d; i++) mean[i] = this.shift[i] + this.mean[i];
+    const scatter = final && this.kernel.scatterOwnable ? symmetricInPlace(this.kernel.scatter, this.size, d) : symmetricFromUpper(this.kernel.scatter, this.size, d);
     return {
       label: this.label,
       count: this.count,
       mean,
-      scatter: symmetricFromUpper(this.kernel.scatter, this.size, d),
+      scatter,
       min: this.min.slice(0, d),
       max: this.max.slice(0, d),
       cubic: this.cubic.slice(),
@@ -184,6 +186,32 @@ function symmetricFromUpper(upper: Float64Array, size: number, d: number): Float
   return out;
 }
 
+/**
+ * The full d × d symmetric matrix written over the size × size one whose upper triangle it is
+ * (returned: a view of its first d² entries). Rows move to stride d first (row i's upper part to
+ * i·d + i, in increasing i: a row's new place ends at (i + 1)·d, before the next row's old start
+ * (i + 1)·size + i + 1, so nothing is overwritten before it is moved), then the lower triangle is
+ * written from the upper one in tiles; the lower triangle's old contents are never read. On this
+ * machine's memory a fresh d × d matrix costs more to touch than to fill: at d = 1000 and 10
+ * classes a copy is 80 MB of first-touched pages.
+ */
+function symmetricInPlace(upper: Float64Array, size: number, d: number): Float64Array {
+  if (size !== d) for (let i = 0; i < d; i++) upper.copyWithin(i * d + i, i * size + i, i * size + d);
+  const out = upper.subarray(0, d * d);
+  const TILE_SIDE = 32;
+  for (let i0 = 0; i0 < d; i0 += TILE_SIDE) {
+    const iEnd = Math.min(d, i0 + TILE_SIDE);
+    for (let j0 = i0; j0 < d; j0 += TILE_SIDE) {
+      const jEnd = Math.min(d, j0 + TILE_SIDE);
+      for (let i = i0; i < iEnd; i++) {
+        const row = i * d;
+        for (let j = Math.max(j0, i + 1); j < jEnd; j++) out[j * d + i] = out[row + j];
+      }
+    }
+  }
+  return out;
+}
+
 /** One streaming pass of clean rows into per-class moments. */
 export class MomentsAccumulator {
   private readonly d: number;
@@ -191,6 +219,7 @@ export class MomentsAccumulator {
   private readonly byLabel = new Map<string, ClassAccumulator>();
 
   private readonly blockRows: number;
+  private finished = false;
 
   constructor(readonly features: string[]) {
     this.d = features.length;
@@ -203,6 +232,7 @@ export class MomentsAccumulator {
    * `labels`, which may grow between calls.
    */
   add(values: Float64Array, classIds: Int32Array, rows: number, labels: readonly string[]): void {
+    if (this.finished) throw new Error('the moments accumulator is finished: nothing can be added');
     const d = this.d;
     const local: (ClassAccumulator | undefined)[] = new Array(labels.length);
     for (let r = 0; r < rows; r++) {
@@ -232,6 +262,22 @@ export class MomentsAccumulator {
   /** The moments so far (buffers are flushed; adding may continue afterwards). */
   result(): Moments {
     for (const c of this.classes) c.flush();
-    return { features: [...this.features], classes: this.classes.map((c) => c.snapshot()) };
+    return { features: [...this.features], classes: this.classes.map((c) => c.snapshot(false)) };
+  }
+
+  /**
+   * The moments at the end of the pass: as result(), but each class's scatter is, where the
+   * kernel allows it (ScatterKernel.scatterOwnable), the kernel's own memory made symmetric in
+   * place rather than a copy. With WebAssembly it is a SharedArrayBuffer, which postMessage shares
+   * with the receiving thread instead of copying; mergeMomentsInPlace may then write into it.
+   * Nothing may be added afterwards.
+   */
+  finish(): Moments {
+    for (const c of this.classes) c.flush();
+    const classes = this.classes.map((c) => c.snapshot(true));
+    this.classes.length = 0;
+    this.byLabel.clear();
+    this.finished = true;
+    return { features: [...this.features], classes };
   }
 }

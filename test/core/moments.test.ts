@@ -14,6 +14,7 @@ import {
   withinScatter,
   type Moments,
 } from '../../src/core/moments';
+import { simdAvailable } from '../../src/core/crossProductKernel';
 import { accumulate, flatten, generateRows, referenceMoments, referenceTotalScatter, relativeDifference, type LabelledRows } from './numericData';
 
 function assertMatchesReference(m: Moments, rows: LabelledRows, tolerance: number, subset?: number[]): void {
@@ -184,6 +185,29 @@ describe('moments', () => {
     assert.deepEqual(Array.from(m.classes[0].mean), [2, 3]);
     assert.deepEqual(Array.from(m.classes[0].scatter), [2, 3, 3, 6]);
     assert.equal(early.classes[0].count, 2, 'an earlier result is a snapshot, not a live view');
+  });
+
+  it('finish() gives exactly the moments of result(), its scatters formed in the kernel memory (shared with a receiving thread, not copied), and ends the accumulator', () => {
+    for (const d of [1, 7, 12, 131]) {
+      const table = generateRows({ seed: 17, counts: [140, 75, 261], d });
+      const [snapshot, finished] = [new MomentsAccumulator(table.features), new MomentsAccumulator(table.features)];
+      for (const acc of [snapshot, finished]) acc.add(table.values, table.classIds, table.n, table.labels);
+      const expected = snapshot.result();
+      const m = finished.finish();
+      assert.deepEqual(
+        m.classes.map((c) => ({ ...c, mean: Array.from(c.mean), scatter: Array.from(c.scatter), min: Array.from(c.min), max: Array.from(c.max), cubic: Array.from(c.cubic) })),
+        expected.classes.map((c) => ({ ...c, mean: Array.from(c.mean), scatter: Array.from(c.scatter), min: Array.from(c.min), max: Array.from(c.max), cubic: Array.from(c.cubic) })),
+        `d=${d}`,
+      );
+      if (simdAvailable()) {
+        const scatter = m.classes[0]!.scatter;
+        assert.ok(scatter.buffer instanceof SharedArrayBuffer, `d=${d}: the WebAssembly kernel's scatter is handed on in its shared memory`);
+        const received = structuredClone(m, { transfer: momentsBuffers(m) });
+        received.classes[0]!.scatter[0] = -1;
+        assert.equal(scatter[0], -1, `d=${d}: a clone shares the scatter, as postMessage does`);
+      }
+      assert.throws(() => finished.add(table.values, table.classIds, 1, table.labels), /finished/);
+    }
   });
 
   it('rejects a non-finite value with a DataError naming the column (at the latest when its block is flushed)', () => {

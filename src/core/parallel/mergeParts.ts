@@ -9,7 +9,7 @@
  */
 import { EXAMPLES } from '../read/scanTally';
 import type { Moments } from '../moments';
-import { mergeMoments } from '../moments';
+import { mergeMomentsInPlace } from '../moments';
 import type { CellExample, ScanSummary } from '../read/types';
 import { DuplicateRows, rowKey } from '../pipeline/duplicateRows';
 import type { FirstPassResult } from '../pipeline/firstPass';
@@ -119,8 +119,10 @@ export function mergeFirstParts(parts: FirstRangePart[], ranges: readonly Source
     notes: parts[0]?.summary.notes ?? [],
     endLine: lineBase + 1,
   };
-  let moments: Moments = { features: [...featureNames], classes: [] };
-  for (const part of workerMoments) moments = mergeMoments(moments, part);
+  // The workers' moments are the pass's own (finished accumulators, shared or handed over): merged
+  // into one another in place, so no d × d matrix is allocated or copied here.
+  const moments: Moments = { features: [...featureNames], classes: [] };
+  for (const part of workerMoments) mergeMomentsInPlace(moments, part);
   const order = new Map(appearance.map((id, i) => [labels[id]!, i]));
   moments.classes.sort((a, b) => (order.get(a.label) ?? 0) - (order.get(b.label) ?? 0));
   const result: FirstPassResult = {

@@ -119,7 +119,7 @@ function firstJob(source: ByteSource, job: FirstPassJob): PassJobRunner {
       };
     },
     finish(): FirstWorkerResult {
-      return { moments: moments.result() };
+      return { moments: moments.finish() };
     },
   };
 }

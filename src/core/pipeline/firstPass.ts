@@ -201,7 +201,7 @@ export async function firstPass(
   // Rows were left out only when the reader had more than the limit.
   const cut = rowLimit !== null && (pass.stoppedEarly || (summary !== undefined && summary.rows > rowLimit)) ? rowLimit : null;
   return {
-    moments: accumulator && !plan.into?.moments ? accumulator.result() : null,
+    moments: accumulator && !plan.into?.moments ? accumulator.finish() : null,
     folds,
     labels: [...labels],
     appearance,
