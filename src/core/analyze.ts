@@ -76,7 +76,7 @@ export const PLOT_TOP_FEATURES = 5;
  * Built twice in one thread they would also cost that thread's pass 2 some 15% more time: V8
  * compiles a closure created once with the values it captures as constants, and the leave-one-out
  * model's row loop is such a closure (measured on the 1 GB table: the calling thread's
- * pass 2 took about 10 ms per MB against the worker thread's 8.9).
+ * pass 2 took about 10 ms per MB against the worker thread's 7.9, thread CPU time).
  */
 function onFirstUse<T>(build: () => T): () => T {
   let built: { value: T } | null = null;
