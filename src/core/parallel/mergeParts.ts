@@ -36,114 +36,139 @@ function shifted(examples: CellExample[], rowBase: number, lineBase: number): Ce
 export type SourceShare = Pick<RangeTask, 'range' | 'rows' | 'bytes' | 'dictionaries'>;
 
 /**
- * Pass 1 of the whole file from its ranges' parts (in file order) and the workers' moments.
+ * Pass 1 of the whole file from its ranges' parts, joined one range at a time in file order:
+ * `add` each part as soon as it and all the ranges before it are in (the parallel pass does so
+ * while the other ranges are still being scanned, so the duplicate check's replay and the rest
+ * run beside the workers rather than after them), then `result` with the workers' moments.
  * Text ranges number their rows from 0 and their lines from 1 (placed here); Parquet rows are
  * numbered in the file already. Ragged rows are not merged here: the caller reads such a file in
  * one thread.
  */
-export function mergeFirstParts(parts: FirstRangePart[], ranges: readonly SourceShare[], workerMoments: Moments[], featureNames: string[]): { result: FirstPassResult; layout: RangeLayout } {
-  const d = featureNames.length;
-  const labels: string[] = [];
-  const labelId = new Map<string, number>();
-  const appearance: number[] = [];
-  const seenUsed = new Set<string>();
-  const nanCells = new Float64Array(d);
-  const positiveInfinity = new Float64Array(d);
-  const negativeInfinity = new Float64Array(d);
-  const nonNumeric = new Array<number>(d).fill(0);
-  const nonNumericExamples: CellExample[][] = Array.from({ length: d }, () => []);
-  const duplicates = new DuplicateRows();
-  const majority = new MajorityVote(d);
-  const layoutRanges: SourceShare[] = [];
-  const usedBefore: Map<string, number>[] = [];
-  const running = new Map<string, number>();
-  let rows = 0;
-  let lineBase = 0;
-  let used = 0;
-  let droppedMissing = 0;
-  let droppedNonFinite = 0;
-  let labelMissing = 0;
+export class FirstPartsMerger {
+  private readonly d: number;
+  private readonly labels: string[] = [];
+  private readonly labelId = new Map<string, number>();
+  private readonly appearance: number[] = [];
+  private readonly seenUsed = new Set<string>();
+  private readonly nanCells: Float64Array;
+  private readonly positiveInfinity: Float64Array;
+  private readonly negativeInfinity: Float64Array;
+  private readonly nonNumeric: number[];
+  private readonly nonNumericExamples: CellExample[][];
+  private readonly duplicates = new DuplicateRows();
+  private readonly majority: MajorityVote;
+  private readonly layoutRanges: SourceShare[] = [];
+  private readonly usedBefore: Map<string, number>[] = [];
+  private readonly running = new Map<string, number>();
+  private notes: ScanSummary['notes'] | null = null;
+  private rows = 0;
+  private lineBase = 0;
+  private used = 0;
+  private droppedMissing = 0;
+  private droppedNonFinite = 0;
+  private labelMissing = 0;
+  /** Ranges joined so far. */
+  added = 0;
 
-  parts.forEach((part, index) => {
-    const share = ranges[index]!;
+  constructor(private readonly featureNames: string[]) {
+    const d = featureNames.length;
+    this.d = d;
+    this.nanCells = new Float64Array(d);
+    this.positiveInfinity = new Float64Array(d);
+    this.negativeInfinity = new Float64Array(d);
+    this.nonNumeric = new Array<number>(d).fill(0);
+    this.nonNumericExamples = Array.from({ length: d }, () => []);
+    this.majority = new MajorityVote(d);
+  }
+
+  /** The next range's part (range `added`), with where the range sits in the source. */
+  add(part: FirstRangePart, share: SourceShare): void {
+    const index = this.added++;
     const relative = share.range !== undefined;
-    const rowBase = relative ? rows : 0;
-    if (share.range && index > 0) layoutRanges.push({ ...share, range: { start: share.range.start, end: share.range.end, origin: { line: lineBase + 1, row: rowBase } } });
-    else layoutRanges.push(share);
-    usedBefore.push(new Map(running));
+    const rowBase = relative ? this.rows : 0;
+    const lineBase = this.lineBase;
+    if (share.range && index > 0) this.layoutRanges.push({ ...share, range: { start: share.range.start, end: share.range.end, origin: { line: lineBase + 1, row: rowBase } } });
+    else this.layoutRanges.push(share);
+    this.usedBefore.push(new Map(this.running));
     const toGlobal = part.labels.map((label) => {
-      let id = labelId.get(label);
+      let id = this.labelId.get(label);
       if (id === undefined) {
-        id = labels.length;
-        labelId.set(label, id);
-        labels.push(label);
+        id = this.labels.length;
+        this.labelId.set(label, id);
+        this.labels.push(label);
       }
       return id;
     });
     part.appearance.forEach((label, i) => {
-      if (!seenUsed.has(label)) {
-        seenUsed.add(label);
-        appearance.push(labelId.get(label)!);
+      if (!this.seenUsed.has(label)) {
+        this.seenUsed.add(label);
+        this.appearance.push(this.labelId.get(label)!);
       }
-      running.set(label, (running.get(label) ?? 0) + part.usedByClass[i]!);
+      this.running.set(label, (this.running.get(label) ?? 0) + part.usedByClass[i]!);
     });
     const record = part.duplicates;
+    const duplicates = this.duplicates;
     for (let r = 0; r < record.rows.length && duplicates.open; r++) {
       const key = rowKey(record.hashes[2 * r]!, record.hashes[2 * r + 1]!, toGlobal[record.labels[r]!]!);
       duplicates.addKey(key, record.rows[r]! + rowBase, relative ? record.lines[r]! + lineBase : undefined);
     }
-    mergeMajorityVotes(majority, part.majority.candidates, part.majority.votes);
-    for (let j = 0; j < d; j++) {
-      nanCells[j]! += part.nanCells[j]!;
-      positiveInfinity[j]! += part.positiveInfinity[j]!;
-      negativeInfinity[j]! += part.negativeInfinity[j]!;
-      nonNumeric[j]! += part.summary.nonNumeric[j]!;
-      const room = EXAMPLES - nonNumericExamples[j]!.length;
-      if (room > 0) append(nonNumericExamples[j]!, shifted(part.summary.nonNumericExamples[j]!.slice(0, room), rowBase, lineBase));
+    mergeMajorityVotes(this.majority, part.majority.candidates, part.majority.votes);
+    for (let j = 0; j < this.d; j++) {
+      this.nanCells[j]! += part.nanCells[j]!;
+      this.positiveInfinity[j]! += part.positiveInfinity[j]!;
+      this.negativeInfinity[j]! += part.negativeInfinity[j]!;
+      this.nonNumeric[j]! += part.summary.nonNumeric[j]!;
+      const room = EXAMPLES - this.nonNumericExamples[j]!.length;
+      if (room > 0) append(this.nonNumericExamples[j]!, shifted(part.summary.nonNumericExamples[j]!.slice(0, room), rowBase, lineBase));
     }
-    rows += part.rows;
-    lineBase += (part.summary.endLine ?? 1) - 1;
-    used += part.used;
-    droppedMissing += part.droppedMissing;
-    droppedNonFinite += part.droppedNonFinite;
-    labelMissing += part.labelMissing;
-  });
+    this.notes ??= part.summary.notes;
+    this.rows += part.rows;
+    this.lineBase += (part.summary.endLine ?? 1) - 1;
+    this.used += part.used;
+    this.droppedMissing += part.droppedMissing;
+    this.droppedNonFinite += part.droppedNonFinite;
+    this.labelMissing += part.labelMissing;
+  }
 
-  const summary: ScanSummary = {
-    rows,
-    labels: [...labels],
-    nonNumeric,
-    nonNumericExamples,
-    raggedRows: 0,
-    raggedExamples: [],
-    notes: parts[0]?.summary.notes ?? [],
-    endLine: lineBase + 1,
-  };
-  // The workers' moments are the pass's own (finished accumulators, shared or handed over): merged
-  // into one another in place, so no d × d matrix is allocated or copied here.
-  const moments: Moments = { features: [...featureNames], classes: [] };
-  for (const part of workerMoments) mergeMomentsInPlace(moments, part);
-  const order = new Map(appearance.map((id, i) => [labels[id]!, i]));
-  moments.classes.sort((a, b) => (order.get(a.label) ?? 0) - (order.get(b.label) ?? 0));
-  const result: FirstPassResult = {
-    moments,
-    folds: null,
-    labels,
-    appearance,
-    rows,
-    used,
-    droppedMissing,
-    droppedNonFinite,
-    labelMissing,
-    nanCells,
-    positiveInfinity,
-    negativeInfinity,
-    summary,
-    rowLimit: null,
-    duplicates,
-    majority,
-  };
-  return { result, layout: { ranges: layoutRanges, appearance: appearance.map((id) => labels[id]!), usedBefore } };
+  /** Pass 1 of the whole file, once every range is added, with each worker's moments. */
+  result(workerMoments: Moments[]): { result: FirstPassResult; layout: RangeLayout } {
+    const { labels, appearance } = this;
+    const summary: ScanSummary = {
+      rows: this.rows,
+      labels: [...labels],
+      nonNumeric: this.nonNumeric,
+      nonNumericExamples: this.nonNumericExamples,
+      raggedRows: 0,
+      raggedExamples: [],
+      notes: this.notes ?? [],
+      endLine: this.lineBase + 1,
+    };
+    // The workers' moments are the pass's own (finished accumulators, shared or handed over): merged
+    // into one another in place, so no d × d matrix is allocated or copied here.
+    const moments: Moments = { features: [...this.featureNames], classes: [] };
+    for (const part of workerMoments) mergeMomentsInPlace(moments, part);
+    const order = new Map(appearance.map((id, i) => [labels[id]!, i]));
+    moments.classes.sort((a, b) => (order.get(a.label) ?? 0) - (order.get(b.label) ?? 0));
+    const result: FirstPassResult = {
+      moments,
+      folds: null,
+      labels,
+      appearance,
+      rows: this.rows,
+      used: this.used,
+      droppedMissing: this.droppedMissing,
+      droppedNonFinite: this.droppedNonFinite,
+      labelMissing: this.labelMissing,
+      nanCells: this.nanCells,
+      positiveInfinity: this.positiveInfinity,
+      negativeInfinity: this.negativeInfinity,
+      summary,
+      rowLimit: null,
+      duplicates: this.duplicates,
+      majority: this.majority,
+    };
+    return { result, layout: { ranges: this.layoutRanges, appearance: appearance.map((id) => labels[id]!), usedBefore: this.usedBefore } };
+  }
 }
 
 /** Appends one by one: a spread of a million-point sample would overflow the call stack. */

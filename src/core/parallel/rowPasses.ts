@@ -28,7 +28,7 @@ import { parquetRowGroups, shareParquetDictionaries } from '../read/parquet';
 import { alignToRowStart } from '../read/textRange';
 import type { ByteRange, TableInspection } from '../read/types';
 import type { ByteSource, RunControl } from '../source';
-import { mergeFirstParts, mergeSecondParts, type RangeLayout, type SourceShare } from './mergeParts';
+import { FirstPartsMerger, mergeSecondParts, type RangeLayout, type SourceShare } from './mergeParts';
 import type { CrossValidationModel, FirstRangePart, FirstWorkerResult, FoldWorkerResult, RangeScanner, SecondRangePart } from './rangeScanner';
 
 /** The passes analyze.ts runs, with the signatures of firstPass and secondPass. */
@@ -146,7 +146,10 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
   const key = (features: readonly number[]): string => features.join(',');
 
   async function runFirst(source: ByteSource, inspection: TableInspection, plan: FirstPassPlan, control: RunControl | undefined, ranges: SourceShare[]): Promise<FirstPassResult> {
-    const parts: FirstRangePart[] = new Array(ranges.length);
+    // Parts wait here until the ranges before them are in, then join the merger (and are dropped).
+    const parts: (FirstRangePart | undefined)[] = new Array(ranges.length);
+    const merger = new FirstPartsMerger(plan.featureNames);
+    let ragged = false;
     const usedDone: number[] = new Array(ranges.length).fill(-1);
     const columns = { label: plan.label, features: plan.features, featureNames: plan.featureNames };
     const task = (index: number) => {
@@ -161,17 +164,20 @@ export function parallelPasses(scanner: RangeScanner): RowPasses {
       };
     };
     const onPart = (index: number, part: unknown): void => {
-      parts[index] = part as FirstRangePart;
-      usedDone[index] = parts[index]!.used;
+      const first = part as FirstRangePart;
+      usedDone[index] = first.used;
+      if (first.summary.raggedRows > 0) ragged = true;
+      parts[index] = first;
+      while (!ragged && merger.added < ranges.length && parts[merger.added]) {
+        const next = merger.added;
+        merger.add(parts[next]!, ranges[next]!);
+        parts[next] = undefined;
+      }
     };
     const results = (await scanner.run({ kind: 'first', inspection, columns }, ranges.length, task, onPart, control).catch(fallbackOn)) as FirstWorkerResult[];
-    if (parts.some((part) => part.summary.raggedRows > 0)) throw new ParallelFallback('ragged rows skipped');
-    const merged = mergeFirstParts(
-      parts,
-      ranges,
-      results.map((r) => r.moments),
-      plan.featureNames,
-    );
+    if (ragged) throw new ParallelFallback('ragged rows skipped');
+    if (merger.added !== ranges.length) throw new Error(`internal: ${ranges.length - merger.added} of ${ranges.length} range parts missing after pass 1`);
+    const merged = merger.result(results.map((r) => r.moments));
     last = { features: key(plan.features), layout: merged.layout, result: merged.result };
     return merged.result;
   }

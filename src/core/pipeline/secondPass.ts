@@ -37,6 +37,8 @@ export interface ScoreBatch {
 /**
  * The cross-validation models; `trainedOn` is what they were built from, so that a parallel pass
  * can rebuild the same models in each worker (models are functions and do not cross threads).
+ * analyze() builds `model` and `classifiers` on first read (getters), which a parallel pass 2 never
+ * makes: see lazyCrossValidator in analyze.ts.
  */
 export type CrossValidator =
   | { kind: 'loo'; model: LeaveOneOut; trainedOn?: { moments: Moments } }
@@ -103,7 +105,10 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
   const classOfLabel = new Map(solution.labels.map((label, c) => [label, c]));
   const appearanceOrder = new Map(input.appearance.map((id, order) => [id, order]));
   const labelOrder = input.appearanceLabels ? new Map(input.appearanceLabels.map((label, order) => [label, order])) : null;
-  const assigner = crossValidator.kind === 'kfold' ? new FoldAssigner(crossValidator.classifiers.length, crossValidator.seed) : null;
+  // The models, read once (CrossValidator's may be built on this first read).
+  const leaveOneOut = crossValidator.kind === 'loo' ? crossValidator.model : null;
+  const foldModels = crossValidator.kind === 'kfold' ? crossValidator.classifiers : null;
+  const assigner = crossValidator.kind === 'kfold' ? new FoldAssigner(foldModels!.length, crossValidator.seed) : null;
   if (assigner && input.start?.foldRows) input.start.foldRows.forEach((rows, order) => assigner.skip(order, rows));
   const sampler = new PlotSampler(input.classCounts, input.plotQuota, input.start?.classRows);
   const majority = new CandidateCount(input.majorityCandidates);
@@ -166,13 +171,12 @@ export async function secondPass(input: SecondPassInput, control: RunControl | u
           const predicted = logScores ? classifier.predictFromScores!(ld, posterior) : classifier.predict(x, posterior);
           confusion[truth]![predicted]! += 1;
           let judged = predicted;
-          if (crossValidator.kind === 'loo') {
-            const model = crossValidator.model;
-            logScores = model.logScores !== undefined;
-            judged = logScores ? model.logScores!(x, truth, posterior) : model.predict(x, truth, posterior);
-          } else if (crossValidator.kind === 'kfold') {
+          if (leaveOneOut) {
+            logScores = leaveOneOut.logScores !== undefined;
+            judged = logScores ? leaveOneOut.logScores!(x, truth, posterior) : leaveOneOut.predict(x, truth, posterior);
+          } else if (foldModels) {
             const fold = assigner!.foldOf(orderOfId[id]!);
-            judged = crossValidator.classifiers[fold]!.predict(x, posterior);
+            judged = foldModels[fold]!.predict(x, posterior);
             logScores = false;
           }
           if (cvConfusion) cvConfusion[truth]![judged]! += 1;
