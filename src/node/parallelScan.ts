@@ -145,7 +145,10 @@ export function createParallelScanner(path: string, name: string, options: Paral
           }
         };
 
-        // Worker threads: each keeps AHEAD ranges in hand, then is told to finish.
+        // Worker threads: each keeps AHEAD ranges in hand (fewer when there are too few ranges to go
+        // round: with two shares and one worker, two in hand left the calling thread none), then is
+        // told to finish.
+        const ahead = Math.max(1, Math.min(AHEAD, Math.floor(count / (threads.length + 1))));
         threads.forEach((worker, w) => {
           let inHand = 0;
           let finishing = false;
@@ -187,7 +190,7 @@ export function createParallelScanner(path: string, name: string, options: Paral
             worker.off('exit', onExit);
           });
           worker.postMessage({ type: 'job', job } satisfies ToScanWorker);
-          for (let i = 0; i < AHEAD; i++) give();
+          for (let i = 0; i < ahead; i++) give();
         });
 
         // The calling thread scans too, one range after another.

@@ -15,6 +15,7 @@ import { DataError } from '../../src/core/errors';
 import type { FitOptions, FitReport } from '../../src/core/types';
 import { openFileSource } from '../../src/node/fileSource';
 import { createParallelScanner } from '../../src/node/parallelScan';
+import type { FirstWorkerResult } from '../../src/core/parallel/rangeScanner';
 import { pumpTable, toCsv, writeTemporary } from './generatedTables';
 import { assertSameReport } from './reportComparison';
 
@@ -29,14 +30,20 @@ function buildWorker(folder: string): string {
   return outfile;
 }
 
-async function fitFile(path: string, options: Partial<FitOptions>, workers: number, workerScript: string, signal?: AbortSignal, jobs?: string[]): Promise<FitReport> {
+/**
+ * jobs: each pass's kind × share count; rowsPerThread: for each pass 1, the rows each thread (the
+ * workers, then the calling thread) put into its moments.
+ */
+async function fitFile(path: string, options: Partial<FitOptions>, workers: number, workerScript: string, signal?: AbortSignal, jobs?: string[], rowsPerThread?: number[][]): Promise<FitReport> {
   const source = await openFileSource(path);
   const scanner = workers > 1 ? createParallelScanner(path, source.name, { workers, minimumBytes: 0, rangeBytes: 24 * 1024, workerScript }) : undefined;
   if (scanner && jobs) {
     const run = scanner.run.bind(scanner);
-    scanner.run = (job, count, ...rest) => {
+    scanner.run = async (job, count, ...rest) => {
       jobs.push(`${job.kind}×${count}`);
-      return run(job, count, ...rest);
+      const results = await run(job, count, ...rest);
+      if (job.kind === 'first') rowsPerThread?.push((results as FirstWorkerResult[]).map((r) => r.moments.classes.reduce((sum, c) => sum + c.count, 0)));
+      return results;
     };
   }
   try {
@@ -83,8 +90,13 @@ describe('parallel row passes on worker threads', function () {
     assert.equal(single.rows.total, 7400);
     for (const workers of [2, 3]) {
       const jobs: string[] = [];
-      assertSameReport(single, await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, workers, workerScript, undefined, jobs));
+      const rowsPerThread: number[][] = [];
+      assertSameReport(single, await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, workers, workerScript, undefined, jobs, rowsPerThread));
       assert.deepEqual(jobs, ['first', 'folds', 'second'].map((kind) => `${kind}×${workers}`));
+      // As many runs as threads: each thread reads one (none holds two while another waits).
+      assert.equal(rowsPerThread.length, 1);
+      assert.equal(rowsPerThread[0]!.length, workers);
+      for (const rows of rowsPerThread[0]!) assert.ok(rows >= Math.floor(7400 / workers) - 1 && rows <= Math.ceil(7400 / workers) + 1, `rows per thread ${rowsPerThread[0]!.join(', ')}`);
     }
   });
 
