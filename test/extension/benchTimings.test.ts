@@ -1,10 +1,10 @@
 /**
  * The editor figures of `npm run bench` (bench/bench.ts runs this file through runInServer.mjs with
  * SCATTERWISE_BENCH_FILE naming its large table; without it the test is skipped): how long after
- * opening the file the provisional answer reaches the panel, and the host's event-loop delay
- * while the full fit runs. It checks the behaviour (a provisional answer, then the full one) and
- * prints the figures on a line starting with SCATTERWISE_BENCH for the benchmark to read; the
- * targets are judged there, not here.
+ * opening the file the host posts the provisional answer to the panel (the panel drawing it is not
+ * timed), and the host's event-loop delay while the full fit runs. It checks the behaviour (a
+ * provisional answer, then the full one) and prints the figures on a line starting with
+ * SCATTERWISE_BENCH for the benchmark to read; the targets are judged there, not here.
  */
 import * as assert from 'node:assert/strict';
 import { monitorEventLoopDelay, performance } from 'node:perf_hooks';
