@@ -18,6 +18,7 @@
  * fixed-width SIMD proposal, merged in WebAssembly 2.0), as crossProductKernel.ts does; a module
  * that fails `WebAssembly.validate` (no SIMD) means the JavaScript path.
  */
+import { section, signedLeb, unsignedLeb, utf8, vector } from './wasmAssembly';
 
 /** Columns of a Cholesky panel: panel rows are this many doubles apart (linalg.ts uses it). */
 export const PANEL = 32;
@@ -54,33 +55,6 @@ export interface CholeskyKernel {
 
 // ---- a small assembler --------------------------------------------------------------------------
 
-function unsignedLeb(value: number): number[] {
-  const out: number[] = [];
-  do {
-    let byte = value & 0x7f;
-    value >>>= 7;
-    if (value !== 0) byte |= 0x80;
-    out.push(byte);
-  } while (value !== 0);
-  return out;
-}
-
-function signedLeb(value: number): number[] {
-  const out: number[] = [];
-  for (;;) {
-    const byte = value & 0x7f;
-    value >>= 7;
-    if ((value === 0 && (byte & 0x40) === 0) || (value === -1 && (byte & 0x40) !== 0)) {
-      out.push(byte);
-      return out;
-    }
-    out.push(byte | 0x80);
-  }
-}
-
-const section = (id: number, body: number[]): number[] => [id, ...unsignedLeb(body.length), ...body];
-const vector = (items: number[][]): number[] => [...unsignedLeb(items.length), ...items.flat()];
-const utf8 = (text: string): number[] => [...unsignedLeb(text.length), ...Array.from(text, (c) => c.charCodeAt(0))];
 
 const I32 = 0x7f;
 const F64 = 0x7c;

@@ -25,6 +25,7 @@
  * merged in WebAssembly 2.0).
  */
 import { crossProductUpdate } from './linalg';
+import { section, signedLeb, unsignedLeb, utf8, vector } from './wasmAssembly';
 
 export interface CrossProductKernel {
   /** d × d; S += Yᵀ Y accumulates in the upper triangle. */
@@ -38,33 +39,6 @@ export interface CrossProductKernel {
 
 // ---- a small assembler for the one function --------------------------------------------------
 
-function unsignedLeb(value: number): number[] {
-  const out: number[] = [];
-  do {
-    let byte = value & 0x7f;
-    value >>>= 7;
-    if (value !== 0) byte |= 0x80;
-    out.push(byte);
-  } while (value !== 0);
-  return out;
-}
-
-function signedLeb(value: number): number[] {
-  const out: number[] = [];
-  for (;;) {
-    const byte = value & 0x7f;
-    value >>= 7;
-    if ((value === 0 && (byte & 0x40) === 0) || (value === -1 && (byte & 0x40) !== 0)) {
-      out.push(byte);
-      return out;
-    }
-    out.push(byte | 0x80);
-  }
-}
-
-const section = (id: number, body: number[]): number[] => [id, ...unsignedLeb(body.length), ...body];
-const vector = (items: number[][]): number[] => [...unsignedLeb(items.length), ...items.flat()];
-const utf8 = (text: string): number[] => [...unsignedLeb(text.length), ...Array.from(text, (c) => c.charCodeAt(0))];
 
 const I32 = 0x7f;
 const V128 = 0x7b;
