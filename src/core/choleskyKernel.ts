@@ -18,7 +18,11 @@
  * fixed-width SIMD proposal, merged in WebAssembly 2.0), as crossProductKernel.ts does; a module
  * that fails `WebAssembly.validate` (no SIMD) means the JavaScript path.
  */
-import { section, signedLeb, unsignedLeb, utf8, vector } from './wasmAssembly';
+import {
+  add, block, br, brIf, end, F64, f64Add, f64Load, f64Mul, f64Store, f64x2Add, f64x2Mul,
+  f64x2Splat, geS, get, I32, i32, lane, loop, mul, section, set, unsignedLeb, utf8, V128, v128Load,
+  v128Store, v128Zero, vector
+} from './wasmAssembly';
 
 /** Columns of a Cholesky panel: panel rows are this many doubles apart (linalg.ts uses it). */
 export const PANEL = 32;
@@ -55,41 +59,15 @@ export interface CholeskyKernel {
 
 // ---- a small assembler --------------------------------------------------------------------------
 
-
-const I32 = 0x7f;
-const F64 = 0x7c;
-const V128 = 0x7b;
-const get = (local: number): number[] => [0x20, local];
-const set = (local: number): number[] => [0x21, local];
-const i32 = (value: number): number[] => [0x41, ...signedLeb(value)];
-const add = [0x6a];
-const mul = [0x6c];
 const and = [0x71];
 const eqz = [0x45];
-const geS = [0x4e];
-const block = [0x02, 0x40];
-const loop = [0x03, 0x40];
-const end = [0x0b];
-const br = (depth: number): number[] => [0x0c, depth];
-const brIf = (depth: number): number[] => [0x0d, depth];
-const f64Load = (offset: number): number[] => [0x2b, 3, ...unsignedLeb(offset)];
-const f64Store = (offset: number): number[] => [0x39, 3, ...unsignedLeb(offset)];
-const f64Add = [0xa0];
 const f64Sub = [0xa1];
-const f64Mul = [0xa2];
 const f64Div = [0xa3];
 const f64Neg = [0x9a];
 const sub = [0x6b];
 const ltS = [0x48];
 const call = (index: number): number[] => [0x10, index];
 const f64Zero = [0x44, 0, 0, 0, 0, 0, 0, 0, 0];
-const v128Load = (offset: number): number[] => [0xfd, 0x00, 3, ...unsignedLeb(offset)];
-const v128Store = (offset: number): number[] => [0xfd, 0x0b, 3, ...unsignedLeb(offset)];
-const v128Zero = [0xfd, 0x0c, ...new Array<number>(16).fill(0)];
-const f64x2Splat = [0xfd, 0x14];
-const f64x2Add = [0xfd, 0xf0, 0x01];
-const f64x2Mul = [0xfd, 0xf2, 0x01];
-const lane = (index: number): number[] => [0xfd, 0x21, index];
 
 /** `while (counter < limit) { body; counter += step }` */
 function whileBelow(counter: number, limit: number, step: number, body: number[]): number[] {

@@ -25,7 +25,11 @@
  * merged in WebAssembly 2.0).
  */
 import { crossProductUpdate } from './linalg';
-import { section, signedLeb, unsignedLeb, utf8, vector } from './wasmAssembly';
+import {
+  add, block, br, brIf, end, F64, f64Add, f64Load, f64Mul, f64Store, f64x2Add, f64x2Mul,
+  f64x2Splat, geS, get, I32, i32, lane, loop, mul, section, set, unsignedLeb, utf8, V128, v128Load,
+  v128Store, v128Zero, vector
+} from './wasmAssembly';
 
 export interface CrossProductKernel {
   /** d × d; S += Yᵀ Y accumulates in the upper triangle. */
@@ -39,31 +43,9 @@ export interface CrossProductKernel {
 
 // ---- a small assembler for the one function --------------------------------------------------
 
-
-const I32 = 0x7f;
-const V128 = 0x7b;
-const get = (local: number): number[] => [0x20, local];
-const set = (local: number): number[] => [0x21, local];
-const i32 = (value: number): number[] => [0x41, ...signedLeb(value)];
-const add = [0x6a];
-const mul = [0x6c];
-const geS = [0x4e];
 const gtS = [0x4a];
 const ne = [0x47];
-const block = [0x02, 0x40];
-const loop = [0x03, 0x40];
 const when = [0x04, 0x40];
-const end = [0x0b];
-const br = (depth: number): number[] => [0x0c, depth];
-const brIf = (depth: number): number[] => [0x0d, depth];
-const f64Load = (offset: number): number[] => [0x2b, 3, ...unsignedLeb(offset)];
-const f64Store = (offset: number): number[] => [0x39, 3, ...unsignedLeb(offset)];
-const f64Add = [0xa0];
-const v128Load = (offset: number): number[] => [0xfd, 0x00, 3, ...unsignedLeb(offset)];
-const v128Zero = [0xfd, 0x0c, ...new Array<number>(16).fill(0)];
-const f64x2Add = [0xfd, 0xf0, 0x01];
-const f64x2Mul = [0xfd, 0xf2, 0x01];
-const lane = (index: number): number[] => [0xfd, 0x21, index];
 
 // Parameters: S byte offset, d, Y byte offset, stride in bytes, rows (even).
 const [S, D, Y, STRIDE, ROWS] = [0, 1, 2, 3, 4];
@@ -138,12 +120,8 @@ function moduleBytes(strideBytes: number): Uint8Array {
 
 // ---- the row-major kernel: S tiles held in registers, block rows broadcast -----------------------
 
-const F64 = 0x7c;
 const geU = [0x4f];
-const f64Mul = [0xa2];
-const v128Store = (offset: number): number[] => [0xfd, 0x0b, 3, ...unsignedLeb(offset)];
 const v128Splat64 = (offset: number): number[] => [0xfd, 0x0a, 3, ...unsignedLeb(offset)];
-const f64x2Splat = [0xfd, 0x14];
 
 /** Side of the S tile held in registers by the row-major kernel (4 rows × 4 columns). */
 export const TILE = 4;

@@ -30,3 +30,30 @@ export function signedLeb(value: number): number[] {
 export const section = (id: number, body: number[]): number[] => [id, ...unsignedLeb(body.length), ...body];
 export const vector = (items: number[][]): number[] => [...unsignedLeb(items.length), ...items.flat()];
 export const utf8 = (text: string): number[] => [...unsignedLeb(text.length), ...Array.from(text, (c) => c.charCodeAt(0))];
+
+// Value types and the instructions both modules use (opcodes from the same specification).
+export const I32 = 0x7f;
+export const V128 = 0x7b;
+export const get = (local: number): number[] => [0x20, local];
+export const set = (local: number): number[] => [0x21, local];
+export const i32 = (value: number): number[] => [0x41, ...signedLeb(value)];
+export const add = [0x6a];
+export const mul = [0x6c];
+export const geS = [0x4e];
+export const block = [0x02, 0x40];
+export const loop = [0x03, 0x40];
+export const end = [0x0b];
+export const br = (depth: number): number[] => [0x0c, depth];
+export const brIf = (depth: number): number[] => [0x0d, depth];
+export const f64Load = (offset: number): number[] => [0x2b, 3, ...unsignedLeb(offset)];
+export const f64Store = (offset: number): number[] => [0x39, 3, ...unsignedLeb(offset)];
+export const f64Add = [0xa0];
+export const v128Load = (offset: number): number[] => [0xfd, 0x00, 3, ...unsignedLeb(offset)];
+export const v128Zero = [0xfd, 0x0c, ...new Array<number>(16).fill(0)];
+export const f64x2Add = [0xfd, 0xf0, 0x01];
+export const f64x2Mul = [0xfd, 0xf2, 0x01];
+export const lane = (index: number): number[] => [0xfd, 0x21, index];
+export const F64 = 0x7c;
+export const f64Mul = [0xa2];
+export const v128Store = (offset: number): number[] => [0xfd, 0x0b, 3, ...unsignedLeb(offset)];
+export const f64x2Splat = [0xfd, 0x14];
