@@ -20,7 +20,7 @@ import { openFileSource } from '../node/fileSource';
 import { createParallelScanner } from '../node/parallelScan';
 import type { ColumnChoice } from '../shared/messages';
 import { packReport, sampleBuffers } from '../shared/packedSample';
-import type { FitFailure, FitRequest, FromWorker } from './workerProtocol';
+import { FIRST_LOOK_PHASE, FULL_ANALYSIS_PHASE, type FitFailure, type FitRequest, type FromWorker } from './workerProtocol';
 
 /** Epoch milliseconds, comparable with the host's (see WorkerTiming). */
 const clock = (): number => performance.timeOrigin + performance.now();
@@ -103,7 +103,7 @@ async function run(request: FitRequest): Promise<void> {
         const analysisStarted = clock();
         const quick = await analyze(source, quickOptions, {
           provisionalBytes: request.provisionalBytes,
-          onProgress: progressPoster('first look'),
+          onProgress: progressPoster(FIRST_LOOK_PHASE),
         });
         post({ type: 'result', report: packReport(quick.report), columns: columnChoices(quick.inspection), timing: { started, analysisStarted, analysisEnded: clock() } });
       } catch (error) {
@@ -117,7 +117,7 @@ async function run(request: FitRequest): Promise<void> {
     let full;
     const analysisStarted = clock();
     try {
-      full = await analyze(source, request.options, { onProgress: progressPoster('analysis'), ...(scanner ? { scanner } : {}) });
+      full = await analyze(source, request.options, { onProgress: progressPoster(FULL_ANALYSIS_PHASE), ...(scanner ? { scanner } : {}) });
     } finally {
       await scanner?.close();
     }

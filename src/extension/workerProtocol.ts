@@ -48,3 +48,7 @@ export type FromWorker =
   /** The report's plot sample packed, its buffers transferred (src/shared/packedSample.ts). */
   | { type: 'result'; report: PanelReport; columns: ColumnChoice[]; timing?: WorkerTiming }
   | { type: 'failed'; failure: FitFailure; columns?: ColumnChoice[] };
+
+/** The progress phases a worker reports: the first look at a large file's first bytes, then the full analysis. */
+export const FIRST_LOOK_PHASE = 'first look';
+export const FULL_ANALYSIS_PHASE = 'analysis';
