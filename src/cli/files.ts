@@ -23,7 +23,7 @@ export async function openInput(cwd: string, path: string): Promise<ByteSource &
   }
   if (!isFile) throw new DataError('unreadable-file', `${path}: not a regular file.`, { file: path }, 'Give the path of a CSV, TSV or Parquet file.');
   try {
-    const file = await openFileSource(full);
+    const file = await openFileSource(full, { blocking: true });
     // Named as the user wrote it, so messages and reports carry no absolute path of this machine.
     return { name: path, size: file.size, read: (offset, length) => file.read(offset, length), close: () => file.close() };
   } catch (error) {

@@ -88,7 +88,7 @@ async function run(request: FitRequest): Promise<void> {
   let source: Awaited<ReturnType<typeof openFileSource>> | undefined;
   try {
     const bytes = request.bytes;
-    source = bytes ? { ...memorySource(request.path, bytes), close: async () => undefined } : await openFileSource(request.path);
+    source = bytes ? { ...memorySource(request.path, bytes), close: async () => undefined } : await openFileSource(request.path, { blocking: true });
     const startHashing = (): Promise<string> => {
       const hashing = (bytes ? Promise.resolve(createHash('sha256').update(bytes).digest('hex')) : hashFile(request.path)).then((sha256) => {
         post({ type: 'hashed', sha256 });

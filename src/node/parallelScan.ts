@@ -80,7 +80,7 @@ export function createParallelScanner(path: string, name: string, options: Paral
   let localNamed: Promise<ByteSource> | null = null;
   const localSource = (): Promise<ByteSource> => {
     // One source object for every pass: readers may keep what they learnt of it (a Parquet footer).
-    local ??= openFileSource(path);
+    local ??= openFileSource(path, { blocking: true });
     localNamed ??= local.then((file) => ({ name, size: file.size, read: (offset, length) => file.read(offset, length) }));
     return localNamed;
   };

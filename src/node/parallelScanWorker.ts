@@ -28,7 +28,7 @@ function errorData(error: unknown): ErrorData {
 }
 
 const { path, name } = workerData as ScanWorkerData;
-const opened = openFileSource(path);
+const opened = openFileSource(path, { blocking: true });
 let runner: PassJobRunner | null = null;
 // Messages are handled one after the other: a range is scanned to its end before the next.
 let queue: Promise<void> = Promise.resolve();
