@@ -9,7 +9,7 @@
  * column 128 KiB at a time; there the round trips left both scanning threads 15–25% idle and cost
  * ~2 s of CPU on the 1 GB table. A blocking source still lets the thread's event loop turn every
  * YIELD_MS (messages from the other scanning threads, a cancellation, a signal are heard then).
- * The extension host's own thread keeps the asynchronous reads.
+ * The extension host and the fit worker (which hashes the file beside its analysis) keep asynchronous reads.
  */
 import { readSync } from 'node:fs';
 import { open } from 'node:fs/promises';

@@ -32,6 +32,12 @@ export interface ParallelScanOptions {
   rangeBytes?: number;
   /** The bundled worker (default: scanWorker.js beside this bundle, i.e. dist/scanWorker.js). */
   workerScript?: string;
+  /**
+   * Whether the calling thread reads its ranges with blocking reads (fileSource.ts), as the worker
+   * threads always do. Default true; false for a calling thread that has other reading to do
+   * beside the scan on its event loop (the fit worker hashes the file meanwhile).
+   */
+  blockingReads?: boolean;
 }
 
 export const DEFAULT_MINIMUM_BYTES = 32 * 1024 * 1024;
@@ -80,7 +86,7 @@ export function createParallelScanner(path: string, name: string, options: Paral
   let localNamed: Promise<ByteSource> | null = null;
   const localSource = (): Promise<ByteSource> => {
     // One source object for every pass: readers may keep what they learnt of it (a Parquet footer).
-    local ??= openFileSource(path, { blocking: true });
+    local ??= openFileSource(path, { blocking: options.blockingReads ?? true });
     localNamed ??= local.then((file) => ({ name, size: file.size, read: (offset, length) => file.read(offset, length) }));
     return localNamed;
   };
