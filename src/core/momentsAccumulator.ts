@@ -161,28 +161,11 @@ class ClassAccumulator {
   }
 }
 
-/**
- * The full d × d symmetric matrix from the upper triangle of a size × size one, in 32 × 32 tiles
- * (a column written element by element down a large matrix misses the cache at every step).
- */
+/** The full d × d symmetric matrix, a new one, from the upper triangle of a size × size one. */
 function symmetricFromUpper(upper: Float64Array, size: number, d: number): Float64Array {
   const out = new Float64Array(d * d);
-  const TILE_SIDE = 32;
-  for (let i0 = 0; i0 < d; i0 += TILE_SIDE) {
-    const iEnd = Math.min(d, i0 + TILE_SIDE);
-    for (let j0 = i0; j0 < d; j0 += TILE_SIDE) {
-      const jEnd = Math.min(d, j0 + TILE_SIDE);
-      for (let i = i0; i < iEnd; i++) {
-        const from = i * size;
-        const row = i * d;
-        for (let j = Math.max(j0, i); j < jEnd; j++) {
-          const value = upper[from + j];
-          out[row + j] = value;
-          out[j * d + i] = value;
-        }
-      }
-    }
-  }
+  for (let i = 0; i < d; i++) out.set(upper.subarray(i * size + i, i * size + d), i * d + i);
+  mirrorUpper(out, d);
   return out;
 }
 
@@ -191,13 +174,22 @@ function symmetricFromUpper(upper: Float64Array, size: number, d: number): Float
  * (returned: a view of its first d² entries). Rows move to stride d first (row i's upper part to
  * i·d + i, in increasing i: a row's new place ends at (i + 1)·d, before the next row's old start
  * (i + 1)·size + i + 1, so nothing is overwritten before it is moved), then the lower triangle is
- * written from the upper one in tiles; the lower triangle's old contents are never read. On this
- * machine's memory a fresh d × d matrix costs more to touch than to fill: at d = 1000 and 10
- * classes a copy is 80 MB of first-touched pages.
+ * written from the upper one; the lower triangle's old contents are never read. On this machine's
+ * memory a fresh d × d matrix costs more to touch than to fill: at d = 1000 and 10 classes a copy
+ * is 80 MB of first-touched pages.
  */
 function symmetricInPlace(upper: Float64Array, size: number, d: number): Float64Array {
   if (size !== d) for (let i = 0; i < d; i++) upper.copyWithin(i * d + i, i * size + i, i * size + d);
   const out = upper.subarray(0, d * d);
+  mirrorUpper(out, d);
+  return out;
+}
+
+/**
+ * Writes the lower triangle of the d × d row-major matrix from its upper triangle, in 32 × 32
+ * tiles (a column written element by element down a large matrix misses the cache at every step).
+ */
+function mirrorUpper(out: Float64Array, d: number): void {
   const TILE_SIDE = 32;
   for (let i0 = 0; i0 < d; i0 += TILE_SIDE) {
     const iEnd = Math.min(d, i0 + TILE_SIDE);
@@ -209,7 +201,6 @@ function symmetricInPlace(upper: Float64Array, size: number, d: number): Float64
       }
     }
   }
-  return out;
 }
 
 /** One streaming pass of clean rows into per-class moments. */
