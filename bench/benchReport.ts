@@ -112,6 +112,6 @@ export function machineMarkdown(m: Machine): string {
     `- measured ${m.date}`,
     `- ${m.cores} cores (nproc), ${m.cpu}, ${m.memoryGiB.toFixed(1)} GiB memory`,
     `- Node ${m.node}${m.python ? `; ${m.python}` : ''}${m.r ? `; ${m.r}` : ''}`,
-    `- load average (1, 5, 15 min) before the run ${m.loadBefore}${m.loadAfter ? `, after ${m.loadAfter}` : ''} — the machine is shared: wall times carry the other load, CPU seconds less so`,
+    `- load average (1, 5, 15 min) before the run ${m.loadBefore}${m.loadAfter ? `, after ${m.loadAfter}` : ''} — the machine is shared (a virtual machine): wall times carry the other load, and so at times do CPU seconds (the same run of the same build took 10 s of CPU in one hour and 14 s in another)`,
   ].join('\n');
 }
