@@ -20,8 +20,8 @@
  */
 import {
   add, block, br, brIf, end, F64, f64Add, f64Load, f64Mul, f64Store, f64x2Add, f64x2Mul,
-  f64x2Splat, geS, get, I32, i32, lane, loop, mul, section, set, unsignedLeb, utf8, V128, v128Load,
-  v128Store, v128Zero, vector
+  f64x2Splat, geS, get, I32, i32, lane, loop, moduleOf, mul, section, set, unsignedLeb, utf8, V128, v128Load,
+  v128Store, v128Zero, vector, compileModule, webAssembly, type WasmModule
 } from './wasmAssembly';
 
 /** Columns of a Cholesky panel: panel rows are this many doubles apart (linalg.ts uses it). */
@@ -223,35 +223,16 @@ function moduleBytes(): Uint8Array {
   const inverse = [...vector([[...unsignedLeb(4), I32], [...unsignedLeb(1), F64]]), ...inverseBody(), ...end];
   const orthogonalize = [...vector([[...unsignedLeb(4), I32]]), ...orthogonalizeBody(), ...end];
   const code = section(10, vector([dot, axpy, rowPair, gram, inverse, orthogonalize].map((fn) => [...unsignedLeb(fn.length), ...fn])));
-  return Uint8Array.from([0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, ...type, ...imports, ...functions, ...exports, ...code]);
+  return moduleOf(type, imports, functions, exports, code);
 }
 
 // ---- instances ------------------------------------------------------------------------------------
-
-/** The part of the WebAssembly JavaScript API used here (declared by hand: the core's type-check has no DOM library). */
-interface WasmModule {
-  readonly compiled: unique symbol;
-}
-interface WasmApi {
-  validate(bytes: Uint8Array): boolean;
-  Module: new (bytes: Uint8Array) => WasmModule;
-  Instance: new (module: WasmModule, imports: object) => { exports: Record<string, unknown> };
-  Memory: new (descriptor: { initial: number }) => { buffer: ArrayBuffer; grow(pages: number): number };
-}
 
 let compiled: WasmModule | null | undefined;
 let enabled = true;
 
 function simdModule(): WasmModule | null {
-  if (compiled !== undefined) return compiled;
-  const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
-  compiled = null;
-  try {
-    const bytes = moduleBytes();
-    if (wasm && wasm.validate(bytes)) compiled = new wasm.Module(bytes);
-  } catch {
-    compiled = null;
-  }
+  if (compiled === undefined) compiled = compileModule(moduleBytes);
   return compiled;
 }
 
@@ -274,7 +255,7 @@ export function choleskyKernel(doubles: number, order: number): CholeskyKernel |
   if (!module) return null;
   const bytes = doubles * 8;
   if (shared === null) {
-    const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly!;
+    const wasm = webAssembly()!;
     const memory = new wasm.Memory({ initial: Math.max(1, Math.ceil(bytes / PAGE)) });
     const { exports } = new wasm.Instance(module, { env: { memory } });
     const dot = exports.dot as (a: number, b: number, length: number) => number;

@@ -27,8 +27,8 @@
 import { crossProductUpdate } from './linalg';
 import {
   add, block, br, brIf, end, F64, f64Add, f64Load, f64Mul, f64Store, f64x2Add, f64x2Mul,
-  f64x2Splat, geS, get, I32, i32, lane, loop, mul, section, set, unsignedLeb, utf8, V128, v128Load,
-  v128Store, v128Zero, vector
+  f64x2Splat, geS, get, I32, i32, lane, loop, moduleOf, mul, section, set, unsignedLeb, utf8, V128, v128Load,
+  v128Store, v128Zero, vector, compileModule, webAssembly, type WasmModule
 } from './wasmAssembly';
 
 export interface CrossProductKernel {
@@ -115,7 +115,7 @@ function moduleBytes(strideBytes: number): Uint8Array {
   ]);
   const fn = [...locals, ...body(strideBytes), ...end];
   const code = section(10, vector([[...unsignedLeb(fn.length), ...fn]]));
-  return Uint8Array.from([0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, ...type, ...imports, ...functions, ...exports, ...code]);
+  return moduleOf(type, imports, functions, exports, code);
 }
 
 // ---- the row-major kernel: S tiles held in registers, block rows broadcast -----------------------
@@ -298,18 +298,7 @@ function rowModuleBytes(size: number, shared: boolean): Uint8Array {
   const shift = [...vector([[...unsignedLeb(3), I32], [...unsignedLeb(1), V128]]), ...shiftRowsBody(size), ...end];
   const centre = [...vector([[...unsignedLeb(4), I32], [...unsignedLeb(3), V128], [...unsignedLeb(2), F64]]), ...centreRowsBody(size), ...end];
   const code = section(10, vector([update, multiply, shift, centre].map((fn) => [...unsignedLeb(fn.length), ...fn])));
-  return Uint8Array.from([0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, ...type, ...imports, ...functions, ...exports, ...code]);
-}
-
-/** The part of the WebAssembly JavaScript API used here (declared by hand: the core's type-check has no DOM library). */
-interface WasmModule {
-  readonly compiled: unique symbol;
-}
-interface WasmApi {
-  validate(bytes: Uint8Array): boolean;
-  Module: new (bytes: Uint8Array) => WasmModule;
-  Instance: new (module: WasmModule, imports: object) => { exports: Record<string, unknown> };
-  Memory: new (descriptor: { initial: number; maximum?: number; shared?: boolean }) => { buffer: ArrayBuffer };
+  return moduleOf(type, imports, functions, exports, code);
 }
 
 const compiled = new Map<number, WasmModule | null>();
@@ -318,14 +307,7 @@ const compiled = new Map<number, WasmModule | null>();
 function simdModule(stride: number): WasmModule | null {
   const known = compiled.get(stride);
   if (known !== undefined) return known;
-  const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
-  let module: WasmModule | null = null;
-  try {
-    const bytes = moduleBytes(stride * 8);
-    if (wasm && wasm.validate(bytes)) module = new wasm.Module(bytes);
-  } catch {
-    module = null;
-  }
+  const module = compileModule(() => moduleBytes(stride * 8));
   compiled.set(stride, module);
   return module;
 }
@@ -343,7 +325,7 @@ class SimdKernel implements CrossProductKernel {
     private readonly d: number,
     readonly stride: number,
   ) {
-    const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly!;
+    const wasm = webAssembly()!;
     this.blockOffset = d * d * 8;
     const bytes = this.blockOffset + d * stride * 8;
     const memory = new wasm.Memory({ initial: Math.max(1, Math.ceil(bytes / PAGE)) });
@@ -468,14 +450,7 @@ function rowModule(size: number, shared: boolean): WasmModule | null {
   const key = `${size} ${shared}`;
   const known = rowModules.get(key);
   if (known !== undefined) return known;
-  const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
-  let module: WasmModule | null = null;
-  try {
-    const bytes = rowModuleBytes(size, shared);
-    if (wasm && wasm.validate(bytes)) module = new wasm.Module(bytes);
-  } catch {
-    module = null;
-  }
+  const module = compileModule(() => rowModuleBytes(size, shared));
   rowModules.set(key, module);
   return module;
 }
@@ -485,7 +460,7 @@ let sharedMemories: boolean | undefined;
 
 function canShareMemory(): boolean {
   if (sharedMemories === undefined) {
-    const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
+    const wasm = webAssembly();
     try {
       sharedMemories = !!wasm && typeof SharedArrayBuffer === 'function' && new wasm.Memory({ initial: 1, maximum: 1, shared: true }).buffer instanceof SharedArrayBuffer;
     } catch {
@@ -524,7 +499,7 @@ class SimdScatterKernel implements ScatterKernel {
     readonly capacity: number,
     readonly scatterOwnable: boolean,
   ) {
-    const wasm = (globalThis as { WebAssembly?: WasmApi }).WebAssembly!;
+    const wasm = webAssembly()!;
     const blockAt = size * size * 8;
     const vectorAt = blockAt + capacity * size * 8;
     const productAt = vectorAt + size * 8;

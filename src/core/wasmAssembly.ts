@@ -1,7 +1,8 @@
 /**
  * The byte encodings shared by the WebAssembly modules we assemble in place (crossProductKernel.ts,
  * choleskyKernel.ts): LEB128 integers, sections, vectors and names, as the WebAssembly binary
- * format (an open W3C standard) defines them.
+ * format (an open W3C standard) defines them; and the part of the WebAssembly JavaScript API both
+ * use to compile and instantiate them.
  */
 export function unsignedLeb(value: number): number[] {
   const out: number[] = [];
@@ -57,3 +58,34 @@ export const F64 = 0x7c;
 export const f64Mul = [0xa2];
 export const v128Store = (offset: number): number[] => [0xfd, 0x0b, 3, ...unsignedLeb(offset)];
 export const f64x2Splat = [0xfd, 0x14];
+
+/** A module: the magic number and version 1, then its sections (core specification, "Modules"). */
+export const moduleOf = (...sections: number[][]): Uint8Array => Uint8Array.from([0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, ...sections.flat()]);
+
+// ---- the part of the WebAssembly JavaScript API the kernels use -------------------------------------
+// (declared here by hand: the core's type-check has no DOM library)
+
+export interface WasmModule {
+  readonly compiled: unique symbol;
+}
+
+export interface WasmApi {
+  validate(bytes: Uint8Array): boolean;
+  Module: new (bytes: Uint8Array) => WasmModule;
+  Instance: new (module: WasmModule, imports: object) => { exports: Record<string, unknown> };
+  Memory: new (descriptor: { initial: number; maximum?: number; shared?: boolean }) => { buffer: ArrayBuffer; grow(pages: number): number };
+}
+
+/** The engine's WebAssembly, where it has one. */
+export const webAssembly = (): WasmApi | undefined => (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
+
+/** The module of these bytes, or null where WebAssembly or a feature the bytes use (SIMD, shared memory) is missing. */
+export function compileModule(bytes: () => Uint8Array): WasmModule | null {
+  const wasm = webAssembly();
+  try {
+    const code = bytes();
+    return wasm && wasm.validate(code) ? new wasm.Module(code) : null;
+  } catch {
+    return null;
+  }
+}
