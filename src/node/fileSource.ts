@@ -3,8 +3,8 @@
  * 'r' and only ever read; reads go into one reused buffer (the ByteSource contract lets the reader
  * copy what it keeps).
  *
- * Threads that do nothing but read rows (the command line, the fit worker, the scan workers) ask
- * for blocking reads: a read then copies from the operating system's cache on the reading thread,
+ * Threads that do nothing but read rows (the command line's, the parallel scan's) ask for
+ * blocking reads: a read then copies from the operating system's cache on the reading thread,
  * instead of a round trip through libuv's thread pool per read. The Parquet reader reads each
  * column 128 KiB at a time; there the round trips left both scanning threads 15–25% idle and cost
  * ~2 s of CPU on the 1 GB table. A blocking source still lets the thread's event loop turn every
