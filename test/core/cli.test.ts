@@ -1,6 +1,6 @@
 import { strict as assert } from 'node:assert';
 import { createHash } from 'node:crypto';
-import { existsSync, readdirSync, readFileSync, statSync, symlinkSync } from 'node:fs';
+import { existsSync, readdirSync, readFileSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { UsageError } from '../../src/cli/args';
 import { describeFailure } from '../../src/cli/main';
@@ -100,6 +100,25 @@ describe('scatterwise CLI (the real dist/cli.js in a child process)', function (
     assert.deepEqual(report.features, ['column_1', 'column_2', 'column_3', 'column_4']);
     assert.equal(report.rows.total, 120);
     assert.equal(report.source.delimiter, ';');
+  });
+
+  it('fit takes its options from the project config for the file, the command line on top, none with --no-config', () => {
+    const data = writeTemporary('pumps.csv', toCsv(pumpTable()));
+    const folder = dirname(data);
+    writeFileSync(join(folder, 'scatterwise.config.json'), JSON.stringify({ datasets: [{ files: ['*.csv'], label: 'fault', exclude: ['pump_id', 'feature_2'], cv: 'loo' }] }));
+    const inFolder = (...args: string[]): FitReport => {
+      const result = runCli(['fit', 'pumps.csv', '--format', 'json', ...args], { cwd: folder, timeout: 60000 });
+      assert.equal(result.status, 0, result.stderr);
+      return JSON.parse(result.stdout) as FitReport;
+    };
+    const configured = inFolder();
+    assert.deepEqual(configured.features, ['feature_1', 'feature_3', 'feature_4']);
+    assert.equal(configured.options.cv, 'loo');
+    assert.deepEqual(inFolder('--exclude', 'pump_id').features, ['feature_1', 'feature_2', 'feature_3', 'feature_4'], 'the command line replaces the config\'s exclusions');
+    assert.deepEqual(inFolder('--no-config').features, ['feature_1', 'feature_2', 'feature_3', 'feature_4']);
+    const given = run('fit', data, '--format', 'json', '--config', join(folder, 'scatterwise.config.json'));
+    assert.equal(given.status, 0, given.stderr);
+    assert.deepEqual((JSON.parse(given.stdout) as FitReport).features, configured.features, '--config from another folder');
   });
 
   it('refuses an output that is the data file, also through a link', () => {

@@ -1,7 +1,9 @@
 /**
  * `scatterwise fit FILE`: the whole analysis of one table, written as JSON (the FitReport
  * contract), Markdown or text, to stdout or `--out`; `--scores` adds the discriminant scores of
- * every row. The data file is opened read-only and no output may name it.
+ * every row. Options come from the project config for the file (as for `report` and `compare`, and
+ * as the editor fits it), with the command line's on top. The data file is opened read-only and no
+ * output may name it.
  */
 import { resolve } from 'node:path';
 import { analyze } from '../../core/analyze';
@@ -17,6 +19,7 @@ import { EXIT_OK } from '../command';
 import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 import { createParallelScanner } from '../../node/parallelScan';
+import { CONFIG_OPTION_SPECS, loadProjectConfig, settingsFor } from '../projectOptions';
 import { ScoresFile } from '../scoresFile';
 import { runFitFromMoments } from './moments';
 
@@ -50,7 +53,8 @@ async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
     throw new UsageError(args.positionals.length === 0 ? 'fit needs the data file to analyse' : `fit takes one data file (got ${args.positionals.length}: ${args.positionals.join(' ')})`, 'fit');
   }
   const input = args.positionals[0]!;
-  const options = resolveOptions(fitOptionsFromArgs(args, 'fit'));
+  const config = loadProjectConfig(args, io, 'fit');
+  const options = resolveOptions(settingsFor(config, input, io.cwd, fitOptionsFromArgs(args, 'fit')).options);
   const format = (valueOf(args, 'format') ?? 'text') as ReportFormat;
   const outputs = [
     { option: 'out', path: valueOf(args, 'out') },
@@ -97,10 +101,11 @@ export const fitCommand: Command = {
     'the linear discriminants (Fisher LDA) and principal components, Wilks, Pillai, Hotelling–Lawley and',
     "Roy tests, Bartlett's tests of each discriminant, Box's M, univariate F per feature, training and",
     'cross-validated accuracy with confusion matrices, and data-quality findings. FILE is never written.',
+    'Options come from the project config (scatterwise.config.json) for FILE, with those given here on top.',
     '',
     'JSON follows the FitReport contract (src/core/types.ts); a figure that cannot be computed (NaN, e.g.',
     'a test without degrees of freedom) or is infinite (F of a feature constant within classes) is null.',
   ].join('\n'),
-  options: [...FIT_OPTION_SPECS, ...OUTPUT_SPECS],
+  options: [...FIT_OPTION_SPECS, ...CONFIG_OPTION_SPECS, ...OUTPUT_SPECS],
   run: runFit,
 };
