@@ -1,6 +1,6 @@
 /**
- * The project config on the command line, for the subcommands that analyse files a project lists
- * (`report`, `compare`): `--config FILE` or the `scatterwise.config.json` found from the current
+ * The project config on the command line, for the subcommands that read data files (`fit`,
+ * `report`, `compare`, `script`, `moments`): `--config FILE` or the `scatterwise.config.json` found from the current
  * folder up to the repository's top, or none with `--no-config`. A file's options are its
  * dataset's, with any fit option given on the command line on top.
  */
@@ -40,4 +40,9 @@ export function settingsFor(config: ConfigOnDisk | undefined, file: string, cwd:
   const relative = config ? pathInConfig(config, path.resolve(cwd, file)) : undefined;
   const dataset = config && relative !== undefined ? datasetFor(config.config, relative) : undefined;
   return { options: mergeFitOptions(datasetFitOptions(dataset), fromCommandLine), dataset };
+}
+
+/** The fit options of the one data file a command reads: the config's for it (found or named on the command line), the command line's on top. */
+export function fileOptions(args: ParsedArgs, io: CommandIO, command: string, file: string, fromCommandLine: Partial<FitOptions>): Partial<FitOptions> {
+  return settingsFor(loadProjectConfig(args, io, command), file, io.cwd, fromCommandLine).options;
 }

@@ -102,7 +102,7 @@ describe('scatterwise CLI (the real dist/cli.js in a child process)', function (
     assert.equal(report.source.delimiter, ';');
   });
 
-  it('fit takes its options from the project config for the file, the command line on top, none with --no-config', () => {
+  it('fit, moments and script take their options from the project config for the file, the command line on top, none with --no-config', () => {
     const data = writeTemporary('pumps.csv', toCsv(pumpTable()));
     const folder = dirname(data);
     writeFileSync(join(folder, 'scatterwise.config.json'), JSON.stringify({ datasets: [{ files: ['*.csv'], label: 'fault', exclude: ['pump_id', 'feature_2'], cv: 'loo' }] }));
@@ -119,6 +119,14 @@ describe('scatterwise CLI (the real dist/cli.js in a child process)', function (
     const given = run('fit', data, '--format', 'json', '--config', join(folder, 'scatterwise.config.json'));
     assert.equal(given.status, 0, given.stderr);
     assert.deepEqual((JSON.parse(given.stdout) as FitReport).features, configured.features, '--config from another folder');
+    // The other commands that read one data file take the same options.
+    const moments = runCli(['moments', 'pumps.csv'], { cwd: folder, timeout: 60000 });
+    assert.equal(moments.status, 0, moments.stderr);
+    assert.deepEqual((JSON.parse(moments.stdout) as { features: string[] }).features, configured.features);
+    const script = runCli(['script', 'pumps.csv', '--lang', 'python'], { cwd: folder, timeout: 60000 });
+    assert.equal(script.status, 0, script.stderr);
+    assert.match(script.stdout, /'feature_1', 'feature_3', 'feature_4'/);
+    assert.doesNotMatch(script.stdout, /'feature_2'/);
   });
 
   it('refuses an output that is the data file, also through a link', () => {

@@ -19,7 +19,7 @@ import { EXIT_OK } from '../command';
 import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 import { createParallelScanner } from '../../node/parallelScan';
-import { CONFIG_OPTION_SPECS, loadProjectConfig, settingsFor } from '../projectOptions';
+import { CONFIG_OPTION_SPECS, fileOptions } from '../projectOptions';
 import { ScoresFile } from '../scoresFile';
 import { runFitFromMoments } from './moments';
 
@@ -53,8 +53,7 @@ async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
     throw new UsageError(args.positionals.length === 0 ? 'fit needs the data file to analyse' : `fit takes one data file (got ${args.positionals.length}: ${args.positionals.join(' ')})`, 'fit');
   }
   const input = args.positionals[0]!;
-  const config = loadProjectConfig(args, io, 'fit');
-  const options = resolveOptions(settingsFor(config, input, io.cwd, fitOptionsFromArgs(args, 'fit')).options);
+  const options = resolveOptions(fileOptions(args, io, 'fit', input, fitOptionsFromArgs(args, 'fit')));
   const format = (valueOf(args, 'format') ?? 'text') as ReportFormat;
   const outputs = [
     { option: 'out', path: valueOf(args, 'out') },

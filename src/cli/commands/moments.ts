@@ -19,6 +19,7 @@ import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
 import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
+import { CONFIG_OPTION_SPECS, fileOptions } from '../projectOptions';
 import type { ReportFormat } from './fit';
 
 /** The fit options that shape moments: roles, missing values, reading. */
@@ -29,7 +30,7 @@ async function runMoments(args: ParsedArgs, io: CommandIO): Promise<number> {
     throw new UsageError(args.positionals.length === 0 ? 'moments needs the data file' : `moments takes one data file (got ${args.positionals.length})`, 'moments');
   }
   const input = args.positionals[0]!;
-  const options = resolveOptions(fitOptionsFromArgs(args, 'moments'));
+  const options = resolveOptions(fileOptions(args, io, 'moments', input, fitOptionsFromArgs(args, 'moments')));
   const outArg = valueOf(args, 'out');
   const [outPath] = outArg !== undefined ? checkOutputs(io.cwd, input, [{ option: 'out', path: outArg }]) : [];
   const source = await openInput(io.cwd, input);
@@ -76,9 +77,11 @@ export const momentsCommand: Command = {
     'and the third- and fourth-order terms the shrinkage needs, as JSON. Parts of one table computed on',
     "different machines merge exactly: 'scatterwise fit --moments PART1.json PART2.json …' gives the",
     'figures of fitting the whole table, except those that need the rows (accuracy, confusion, plots).',
+    'Options come from the project config (scatterwise.config.json) for FILE, with those given here on top.',
   ].join('\n'),
   options: [
     ...FIT_OPTION_SPECS.filter((s) => MOMENT_OPTION_NAMES.has(s.name)),
+    ...CONFIG_OPTION_SPECS,
     { name: 'out', value: 'FILE', describe: 'write the moments to FILE instead of the standard output' },
   ],
   run: runMoments,

@@ -17,6 +17,7 @@ import type { Command, CommandIO } from '../command';
 import { EXIT_OK } from '../command';
 import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
+import { CONFIG_OPTION_SPECS, fileOptions } from '../projectOptions';
 
 const SCRIPT_SPECS: readonly OptionSpec[] = [
   { name: 'lang', value: 'LANG', values: SCRIPT_LANGUAGES, describe: 'python (pandas + scikit-learn), r (base R + MASS) or sql (a per-class moments query)' },
@@ -46,7 +47,7 @@ async function runScript(args: ParsedArgs, io: CommandIO): Promise<number> {
     if (stray) throw new UsageError(`--${stray} applies to --lang sql only`, 'script');
   }
   const input = args.positionals[0]!;
-  const options = resolveOptions(fitOptionsFromArgs(args, 'script'));
+  const options = resolveOptions(fileOptions(args, io, 'script', input, fitOptionsFromArgs(args, 'script')));
   const outArg = valueOf(args, 'out');
   const [outPath] = outArg !== undefined ? checkOutputs(io.cwd, input, [{ option: 'out', path: outArg }]) : [];
   const generator = `scatterwise ${version}`;
@@ -87,8 +88,9 @@ export const scriptCommand: Command = {
     'run it with --check to recompute and exit 1 with a list of differences beyond its stated tolerance.',
     'sql: writes a query computing per-class counts, sums and shifted cross-products from a table with the',
     "columns of FILE (quoted for --dialect); fit its result with 'scatterwise fit --moments RESULT.csv'.",
+    'Options come from the project config (scatterwise.config.json) for FILE, with those given here on top.',
     'FILE is only read.',
   ].join('\n'),
-  options: [...FIT_OPTION_SPECS, ...SCRIPT_SPECS],
+  options: [...FIT_OPTION_SPECS, ...CONFIG_OPTION_SPECS, ...SCRIPT_SPECS],
   run: runScript,
 };
