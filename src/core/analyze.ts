@@ -72,7 +72,8 @@ export const PLOT_TOP_FEATURES = 5;
 
 /**
  * The cross-validation models are built on first use, by the single-thread pass 2 only: a parallel
- * pass 2 builds them in every thread from `trainedOn` (passJobs.ts), the calling thread included.
+ * pass 2 builds them in every thread from `trainedOn` (passJobs.ts), the calling thread included
+ * (k-fold: from the fold models the calling thread solves once, rowPasses.ts).
  * Built twice in one thread they would also cost that thread's pass 2 some 15% more time: V8
  * compiles a closure created once with the values it captures as constants, and the leave-one-out
  * model's row loop is such a closure (measured on the 1 GB table: the calling thread's

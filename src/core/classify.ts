@@ -20,11 +20,11 @@
  * (the row alone carried some direction's variance) the row is classified by the full fit.
  * A class of one row disappears from its left-out fit (posterior 0; K − 1 classes remain).
  */
-import { scoreRow, type LdaSolution } from './lda';
+import { scoreRow, type LdaSolution, type ScoringModel } from './lda';
 import { solveLower, symmetricEigen } from './linalg';
 import type { Moments } from './moments';
 
-export { FoldMomentsAccumulator, foldClassifiers } from './foldModels';
+export { FoldMomentsAccumulator, foldClassifier, foldClassifiers, solveFoldModels, type FoldModel } from './foldModels';
 
 export interface Classifier {
   /** Writes the K posteriors (solution order) and returns the predicted class index. */
@@ -63,7 +63,7 @@ export function softmaxInPlace(scores: Float64Array, length: number = scores.len
   return best;
 }
 
-export function createClassifier(s: LdaSolution): Classifier {
+export function createClassifier(s: ScoringModel): Classifier {
   const K = s.labels.length;
   const k = s.eigenvalues.length;
   const logPriors = Float64Array.from(s.priors, Math.log);

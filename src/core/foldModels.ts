@@ -20,7 +20,7 @@
 import type { Classifier } from './classify';
 import { createClassifier } from './classify';
 import { DataError } from './errors';
-import { solveLda, solvePooled, type LdaOptions, type LdaSolution, type PooledMoments } from './lda';
+import { scoringModelOf, solveLda, solvePooled, type LdaOptions, type LdaSolution, type PooledMoments, type ScoringModel } from './lda';
 import { createCrossProductKernel, type CrossProductKernel } from './crossProductKernel';
 import { mirrorUpper } from './linalg';
 import type { Moments } from './moments';
@@ -207,11 +207,44 @@ export class FoldMomentsAccumulator implements FoldParts {
 }
 
 /**
+ * One fold's model, solved on total − fold: what its classifier needs and nothing more (a few
+ * vectors and r × k directions), so that a parallel pass 2 posts these to its threads rather than
+ * the moments they were solved from (K + kFolds matrices of d × d) and solves each fold once.
+ */
+export interface FoldModel {
+  model: ScoringModel;
+  /** Index of each of the model's classes in the full solution's class order. */
+  toFull: Int32Array;
+  /** Classes of the full solution. */
+  classes: number;
+}
+
+/**
  * One classifier per fold, trained on total − fold (see the module comment). Posteriors and the
  * returned index are in the full solution's class order (a class absent from a training set gets
  * posterior 0). `full` is the fit on all rows (solved here when not given).
  */
 export function foldClassifiers(total: Moments, folds: FoldParts, options: LdaOptions, full?: LdaSolution): Classifier[] {
+  return solveFoldModels(total, folds, options, full).map(foldClassifier);
+}
+
+/** A fold's classifier from its model (cheap: nothing is solved). */
+export function foldClassifier(fold: FoldModel): Classifier {
+  const inner = createClassifier(fold.model);
+  const { toFull, classes } = fold;
+  const posterior = new Float64Array(fold.model.labels.length);
+  return {
+    predict(x: Float64Array, out: Float64Array): number {
+      const predicted = inner.predict(x, posterior);
+      out.fill(0, 0, classes);
+      for (let i = 0; i < toFull.length; i++) out[toFull[i]] = posterior[i];
+      return toFull[predicted];
+    },
+  };
+}
+
+/** The fold models foldClassifiers classifies with: one per fold, solved on total − fold. */
+export function solveFoldModels(total: Moments, folds: FoldParts, options: LdaOptions, full?: LdaSolution): FoldModel[] {
   const solution = full ?? solveLda(total, options);
   const fixed: LdaOptions =
     solution.solver === 'shrinkage'
@@ -266,16 +299,6 @@ export function foldClassifiers(total: Moments, folds: FoldParts, options: LdaOp
     }
     for (let j = 0; j < d; j++) if (lo[j] !== hi[j]) training.singleValue[j] = 0;
     const model = solvePooled(training, fixed);
-    const inner = createClassifier(model);
-    const toFull = Int32Array.from(model.labels, (l) => solution.labels.indexOf(l));
-    const posterior = new Float64Array(model.labels.length);
-    return {
-      predict(x: Float64Array, out: Float64Array): number {
-        const predicted = inner.predict(x, posterior);
-        out.fill(0, 0, solution.labels.length);
-        for (let i = 0; i < toFull.length; i++) out[toFull[i]] = posterior[i];
-        return toFull[predicted];
-      },
-    };
+    return { model: scoringModelOf(model), toFull: Int32Array.from(model.labels, (l) => solution.labels.indexOf(l)), classes: solution.labels.length };
   });
 }

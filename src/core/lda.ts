@@ -402,8 +402,24 @@ function emptySolution(
   };
 }
 
+/** What scoring a row and classifying it take from a solution (no r × r matrices: small enough to post to another thread). */
+export type ScoringModel = Pick<LdaSolution, 'labels' | 'priors' | 'eigenvalues' | 'centroids' | 'kept' | 'overallMean' | 'directions'>;
+
+/** The scoring part of a solution, its own copy. */
+export function scoringModelOf(s: ScoringModel): ScoringModel {
+  return {
+    labels: [...s.labels],
+    priors: s.priors.slice(),
+    eigenvalues: s.eigenvalues.slice(),
+    centroids: s.centroids.slice(),
+    kept: [...s.kept],
+    overallMean: s.overallMean.slice(),
+    directions: s.directions.slice(),
+  };
+}
+
 /** Discriminant scores of one row: out_j = (x − m)ᵀ w_j over the kept features (x: all d, input order). */
-export function scoreRow(s: LdaSolution, x: Float64Array, out: Float64Array): void {
+export function scoreRow(s: ScoringModel, x: Float64Array, out: Float64Array): void {
   const k = s.eigenvalues.length;
   const { kept, overallMean, directions } = s;
   for (let j = 0; j < k; j++) out[j] = 0;

@@ -1,6 +1,6 @@
 import * as assert from 'node:assert/strict';
 import { inverse, Matrix } from 'ml-matrix';
-import { createClassifier, createLeaveOneOut, FoldMomentsAccumulator, foldClassifiers } from '../../src/core/classify';
+import { createClassifier, createLeaveOneOut, FoldMomentsAccumulator, foldClassifier, foldClassifiers, solveFoldModels } from '../../src/core/classify';
 import { FoldAssigner } from '../../src/core/folds';
 import { solveLda, type LdaOptions, type LdaSolution } from '../../src/core/lda';
 import { MomentsAccumulator, subtractMoments, type Moments } from '../../src/core/moments';
@@ -212,5 +212,23 @@ describe('classify', () => {
         }
       });
     }
+
+    it('the fold models a parallel pass posts to its threads hold no d × d matrix and classify as the fold classifiers do', () => {
+      const options: LdaOptions = { solver: 'exact', priors: 'empirical' };
+      const full = solveLda(moments, options);
+      const models = structuredClone(solveFoldModels(moments, accumulator, options, full));
+      const largest = Math.max(...models.flatMap((m) => Object.values(m.model).map((v: { length?: number }) => v.length ?? 0)));
+      assert.ok(largest < rows.d * rows.d, `largest array ${largest} for d = ${rows.d}`);
+      const direct = foldClassifiers(moments, accumulator, options, full);
+      const posted = models.map(foldClassifier);
+      const a = new Float64Array(full.labels.length);
+      const b = new Float64Array(full.labels.length);
+      for (let f = 0; f < k; f++) {
+        for (const r of all.filter((row) => folds[row] === f)) {
+          assert.equal(posted[f].predict(rowOf(rows, r), b), direct[f].predict(rowOf(rows, r), a));
+          assert.deepEqual(b, a);
+        }
+      }
+    });
   });
 });

@@ -3,7 +3,7 @@
  * secondPass as the single-threaded analysis, each run over one byte range at a time, with the
  * accumulators kept across the worker's ranges. Pure: the source comes from the caller.
  */
-import { createClassifier, createLeaveOneOut, foldClassifiers } from '../classify';
+import { createClassifier, createLeaveOneOut, foldClassifier } from '../classify';
 import { FoldMomentsAccumulator } from '../foldModels';
 import { MomentsAccumulator } from '../moments';
 import { firstPass } from '../pipeline/firstPass';
@@ -148,10 +148,7 @@ function foldJob(source: ByteSource, job: FoldPassJob): PassJobRunner {
 function crossValidatorOf(job: SecondPassJob): CrossValidator {
   const model = job.crossValidation;
   if (model.kind === 'loo') return { kind: 'loo', model: createLeaveOneOut(job.solution, model.moments) };
-  if (model.kind === 'kfold') {
-    const folds = { features: model.features, kFolds: model.folds.length, parts: () => model.folds };
-    return { kind: 'kfold', classifiers: foldClassifiers(model.moments, folds, model.options, job.solution), seed: model.seed };
-  }
+  if (model.kind === 'kfold') return { kind: 'kfold', classifiers: model.folds.map(foldClassifier), seed: model.seed };
   return { kind: 'none' };
 }
 

@@ -10,8 +10,8 @@
  * all the ranges it scans; the range parts and, at the end, each worker's result come back.
  */
 import type { Moments } from '../moments';
-import type { FoldPart } from '../foldModels';
-import type { LdaOptions, LdaSolution } from '../lda';
+import type { FoldModel, FoldPart } from '../foldModels';
+import type { LdaSolution } from '../lda';
 import type { PcaSolution } from '../pca';
 import type { SharedDictionaries } from '../read/parquet';
 import type { ByteRange, ScanSummary, TableInspection } from '../read/types';
@@ -44,11 +44,15 @@ export interface FoldPassJob {
   appearance: string[];
 }
 
-/** What a worker needs to rebuild the cross-validation models exactly as the analysis built them. */
+/**
+ * What a worker needs for the cross-validation models exactly as the analysis built them: for
+ * leave-one-out the moments it downdates, for k-fold the fold models, solved once by the calling
+ * thread (foldModels.ts).
+ */
 export type CrossValidationModel =
   | { kind: 'none' }
   | { kind: 'loo'; moments: Moments }
-  | { kind: 'kfold'; moments: Moments; features: string[]; folds: FoldPart[]; options: LdaOptions; seed: number };
+  | { kind: 'kfold'; folds: FoldModel[]; seed: number };
 
 /** Pass 2: predictions, cross-validation, plot sample and scores with the fitted model. */
 export interface SecondPassJob {

@@ -18,7 +18,7 @@
  * thread: the passes throw ParallelFallback and the analysis starts over in one thread.
  */
 import { DataError } from '../errors';
-import type { FoldPart, FoldParts } from '../foldModels';
+import { solveFoldModels, type FoldPart, type FoldParts } from '../foldModels';
 import { firstPass } from '../pipeline/firstPass';
 import type { FirstPassPlan, FirstPassResult } from '../pipeline/firstPass';
 import { DUPLICATE_CHECK_CAPACITY } from '../pipeline/duplicateRows';
@@ -274,7 +274,7 @@ function crossValidationModel(input: SecondPassInput): CrossValidationModel | nu
   if (!cv.trainedOn) return null;
   if (cv.kind === 'loo') return { kind: 'loo', moments: cv.trainedOn.moments };
   const { moments, folds, options } = cv.trainedOn;
-  return { kind: 'kfold', moments, features: [...folds.features], folds: folds.parts(), options, seed: cv.seed };
+  return { kind: 'kfold', folds: solveFoldModels(moments, folds, options, input.solution), seed: cv.seed };
 }
 
 /**

@@ -36,7 +36,8 @@ export interface ScoreBatch {
 
 /**
  * The cross-validation models; `trainedOn` is what they were built from, so that a parallel pass
- * can rebuild the same models in each worker (models are functions and do not cross threads).
+ * can rebuild the same models in each worker (models are functions and do not cross threads; for
+ * k-fold it posts the fold models solved from `trainedOn`, not `trainedOn` itself).
  * analyze() builds `model` and `classifiers` on first read (getters), which a parallel pass 2 never
  * makes: see lazyCrossValidator in analyze.ts.
  */
