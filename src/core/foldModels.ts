@@ -248,8 +248,8 @@ export function solveFoldModels(total: Moments, folds: FoldParts, options: LdaOp
   const solution = full ?? solveLda(total, options);
   const fixed: LdaOptions =
     solution.solver === 'shrinkage'
-      ? { solver: 'shrinkage', priors: options.priors, shrinkageIntensity: solution.shrinkage }
-      : { solver: 'exact', priors: options.priors };
+      ? { solver: 'shrinkage', priors: options.priors, shrinkageIntensity: solution.shrinkage, conditionNumber: false }
+      : { solver: 'exact', priors: options.priors, conditionNumber: false };
   const d = total.features.length;
   const sameFeatures = folds.features.length === d && folds.features.every((f, i) => f === total.features[i]);
   if (!sameFeatures) throw new DataError('moments-mismatch', 'The fold moments and the total moments are over different features.');
