@@ -151,6 +151,18 @@ export function createParallelScanner(path: string, name: string, options: Paral
           }
         };
 
+        // The calling thread's first range is the first of all: where a range passes over rows before
+        // it (a Parquet row group split in runs: the second run decompresses the first), the
+        // calling thread, which also merges the parts and has read the footer and any shared
+        // dictionaries, does not pass over any.
+        let firstLocal: ReturnType<typeof take> = null;
+        try {
+          firstLocal = take();
+        } catch (error) {
+          settle(error as Error);
+          return;
+        }
+
         // Worker threads: each keeps AHEAD ranges in hand (fewer when there are too few ranges to go
         // round: with two shares and one worker, two in hand left the calling thread none), then is
         // told to finish.
@@ -204,7 +216,8 @@ export function createParallelScanner(path: string, name: string, options: Paral
           const runner = openPassJob(await localSource(), job);
           for (;;) {
             if (settled) return;
-            const taken = take();
+            const taken = firstLocal ?? take();
+            firstLocal = null;
             if (!taken) break;
             const part = await runner.scan(taken.described, {
               ...(control?.signal ? { signal: control.signal } : {}),
