@@ -10,6 +10,7 @@ import type { Command, CommandIO } from './command';
 import { EXIT_BUG, EXIT_INTERRUPTED, EXIT_OK, EXIT_USAGE } from './command';
 import { COMMANDS } from './commands/index';
 import { commandHelp, programHelp } from './help';
+import { keepYoungGenerationSmall } from './youngGeneration';
 
 function findCommand(name: string): Command {
   const command = COMMANDS.find((c) => c.name === name);
@@ -82,6 +83,7 @@ export async function runCli(argv: readonly string[], io: CommandIO): Promise<nu
 }
 
 function main(): void {
+  keepYoungGenerationSmall();
   const abort = new AbortController();
   const onSignal = (): void => abort.abort();
   process.once('SIGINT', onSignal);

@@ -38,6 +38,8 @@ export interface ParallelScanOptions {
    * beside the scan on its event loop (the fit worker hashes the file meanwhile).
    */
   blockingReads?: boolean;
+  /** Called as each worker thread comes online (the command line re-applies its V8 flags then: see src/cli/youngGeneration.ts). */
+  onWorkerOnline?: () => void;
 }
 
 export const DEFAULT_MINIMUM_BYTES = 32 * 1024 * 1024;
@@ -75,7 +77,9 @@ export function createParallelScanner(path: string, name: string, options: Paral
   const ensurePool = (): Worker[] => {
     while (pool.length < workers - 1) {
       const data: ScanWorkerData = { path, name };
-      pool.push(new Worker(script, { workerData: data, resourceLimits: WORKER_LIMITS }));
+      const worker = new Worker(script, { workerData: data, resourceLimits: WORKER_LIMITS });
+      if (options.onWorkerOnline) worker.once('online', options.onWorkerOnline);
+      pool.push(worker);
     }
     return pool;
   };

@@ -20,6 +20,7 @@ import { checkOutputs, openInput, writeOutput } from '../files';
 import { FIT_OPTION_SPECS, fitOptionsFromArgs } from '../fitOptions';
 import { createParallelScanner } from '../../node/parallelScan';
 import { CONFIG_OPTION_SPECS, fileOptions } from '../projectOptions';
+import { keepYoungGenerationSmall } from '../youngGeneration';
 import { ScoresFile } from '../scoresFile';
 import { runFitFromMoments } from './moments';
 
@@ -72,7 +73,7 @@ async function runFit(args: ParsedArgs, io: CommandIO): Promise<number> {
   const scores = scoresPath !== undefined ? new ScoresFile(scoresPath) : undefined;
   const workers = Number(valueOf(args, 'workers') ?? 0) || undefined;
   // Large splittable text is read by several threads; the report is the same (core/parallel).
-  const scanner = workers === 1 ? undefined : createParallelScanner(resolve(io.cwd, input), source.name, workers ? { workers } : {});
+  const scanner = workers === 1 ? undefined : createParallelScanner(resolve(io.cwd, input), source.name, { ...(workers ? { workers } : {}), onWorkerOnline: keepYoungGenerationSmall });
   try {
     const { report } = await analyze(source, options, {
       signal: io.signal,
