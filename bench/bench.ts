@@ -321,7 +321,7 @@ function evaluateTargets(
       targets.push({
         what: `d = ${k.d}: moments update within 3× of numpy's X.T @ X on the same rows, both on all cores, both steady${note}`,
         holds: two <= 3 * numpy,
-        measured: `${(two / numpy).toFixed(1)}× (${two.toFixed(3)} s on two threads vs ${numpy.toFixed(3)} s; one thread ${ours.toFixed(3)} s, ${(ours / numpy).toFixed(1)}×; into a fresh accumulator ${twoFresh.toFixed(3)} s, ${(twoFresh / numpy).toFixed(1)}×; ${engine})`,
+        measured: `${(two / numpy).toFixed(2)}× (${two.toFixed(3)} s on two threads vs ${numpy.toFixed(3)} s; one thread ${ours.toFixed(3)} s, ${(ours / numpy).toFixed(1)}×; into a fresh accumulator ${twoFresh.toFixed(3)} s, ${(twoFresh / numpy).toFixed(1)}×; ${engine})`,
       });
     }
     const lda = median(k.ours.map((r) => r.solveLdaSeconds ?? NaN));
