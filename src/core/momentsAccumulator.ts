@@ -9,6 +9,7 @@
  */
 import { DataError } from './errors';
 import { createScatterKernel, type ScatterKernel } from './crossProductKernel';
+import { mirrorUpper } from './linalg';
 import { shiftQuartic } from './momentShift';
 import type { ClassMoments, Moments } from './moments';
 
@@ -183,24 +184,6 @@ function symmetricInPlace(upper: Float64Array, size: number, d: number): Float64
   const out = upper.subarray(0, d * d);
   mirrorUpper(out, d);
   return out;
-}
-
-/**
- * Writes the lower triangle of the d × d row-major matrix from its upper triangle, in 32 × 32
- * tiles (a column written element by element down a large matrix misses the cache at every step).
- */
-function mirrorUpper(out: Float64Array, d: number): void {
-  const TILE_SIDE = 32;
-  for (let i0 = 0; i0 < d; i0 += TILE_SIDE) {
-    const iEnd = Math.min(d, i0 + TILE_SIDE);
-    for (let j0 = i0; j0 < d; j0 += TILE_SIDE) {
-      const jEnd = Math.min(d, j0 + TILE_SIDE);
-      for (let i = i0; i < iEnd; i++) {
-        const row = i * d;
-        for (let j = Math.max(j0, i + 1); j < jEnd; j++) out[j * d + i] = out[row + j];
-      }
-    }
-  }
 }
 
 /** One streaming pass of clean rows into per-class moments. */

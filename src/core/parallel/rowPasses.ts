@@ -18,6 +18,7 @@
  * thread: the passes throw ParallelFallback and the analysis starts over in one thread.
  */
 import { DataError } from '../errors';
+import { crossProductUpdate, mirrorUpper } from '../linalg';
 import { solveFoldModels, type FoldPart, type FoldParts } from '../foldModels';
 import { firstPass } from '../pipeline/firstPass';
 import type { FirstPassPlan, FirstPassResult } from '../pipeline/firstPass';
@@ -318,28 +319,17 @@ export function mergeFoldParts(features: string[], kFolds: number, workers: Fold
   return { features: [...features], kFolds, parts: () => merged };
 }
 
-/** S += Σ_c w_c δ_c δ_cᵀ (S d × d, row-major), in one pass over S: per entry a sum over the classes. */
+/** S += Σ_c w_c δ_c δ_cᵀ for the symmetric d × d S: linalg's blocked rank-k update of the upper triangle (rows √w_c δ_c), then the mirror. */
 function addWeightedOuterProducts(scatter: Float64Array, d: number, weights: number[], deltas: Float64Array[]): void {
   const C = weights.length;
   if (C === 0) return;
-  // Column c of `scaled` is w_c δ_c and of `plain` δ_c, both d × C row-major.
-  const scaled = new Float64Array(d * C);
-  const plain = new Float64Array(d * C);
+  // The block transposed, as crossProductUpdate takes it: entry (i, c) at i·C + c.
+  const columns = new Float64Array(d * C);
   for (let c = 0; c < C; c++) {
+    const root = Math.sqrt(weights[c]!);
     const delta = deltas[c]!;
-    for (let i = 0; i < d; i++) {
-      scaled[i * C + c] = weights[c]! * delta[i]!;
-      plain[i * C + c] = delta[i]!;
-    }
+    for (let i = 0; i < d; i++) columns[i * C + c] = root * delta[i]!;
   }
-  for (let i = 0; i < d; i++) {
-    const row = i * d;
-    const a = i * C;
-    for (let j = 0; j < d; j++) {
-      const b = j * C;
-      let sum = 0;
-      for (let c = 0; c < C; c++) sum += scaled[a + c]! * plain[b + c]!;
-      scatter[row + j]! += sum;
-    }
-  }
+  crossProductUpdate(scatter, d, columns, C, C);
+  mirrorUpper(scatter, d);
 }
