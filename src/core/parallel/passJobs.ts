@@ -6,9 +6,9 @@
 import { createClassifier, createLeaveOneOut, foldClassifier } from '../classify';
 import { FoldMomentsAccumulator } from '../foldModels';
 import { MomentsAccumulator } from '../moments';
-import { firstPass } from '../pipeline/firstPass';
+import { openFirstPass } from '../pipeline/firstPass';
 import { rowValueHash } from '../pipeline/duplicateRows';
-import { secondPass } from '../pipeline/secondPass';
+import { openSecondPass } from '../pipeline/secondPass';
 import { adoptParquetDictionaries } from '../read/parquet';
 import type { CrossValidator, ScoreBatch } from '../pipeline/secondPass';
 import type { ByteSource, RunControl } from '../source';
@@ -97,10 +97,12 @@ class UsedRowRecorder {
 
 function firstJob(source: ByteSource, job: FirstPassJob): PassJobRunner {
   const moments = new MomentsAccumulator(job.columns.featureNames);
+  // Opened once for all the worker's ranges (see openFirstPass).
+  const scanShare = openFirstPass(source, job.inspection, { ...job.columns, moments: true, into: { moments } });
   return {
     async scan(task, control): Promise<FirstRangePart> {
       const recorder = new UsedRowRecorder(task.duplicateBudget ?? 0);
-      const pass = await firstPass(source, job.inspection, { ...job.columns, moments: true, ...share(task), into: { moments }, duplicateSink: recorder }, control);
+      const pass = await scanShare({ ...share(task), duplicateSink: recorder }, control);
       return {
         labels: pass.labels,
         appearance: pass.appearance.map((id) => pass.labels[id]!),
@@ -128,14 +130,10 @@ function foldJob(source: ByteSource, job: FoldPassJob): PassJobRunner {
   const folds = new FoldMomentsAccumulator(job.columns.featureNames, job.folds.count);
   const order = new Map(job.appearance.map((label, index) => [label, index]));
   const ignore = { add: (): void => undefined };
+  const scanShare = openFirstPass(source, job.inspection, { ...job.columns, moments: false, folds: job.folds, into: { folds } });
   return {
     async scan(task, control): Promise<Record<string, never>> {
-      await firstPass(
-        source,
-        job.inspection,
-        { ...job.columns, moments: false, folds: job.folds, ...share(task), into: { folds }, foldStart: { order, rowsBefore: task.foldRows ?? [] }, duplicateSink: ignore },
-        control,
-      );
+      await scanShare({ ...share(task), foldStart: { order, rowsBefore: task.foldRows ?? [] }, duplicateSink: ignore }, control);
       return {};
     },
     finish(): FoldWorkerResult {
@@ -153,51 +151,48 @@ function crossValidatorOf(job: SecondPassJob): CrossValidator {
 }
 
 function secondJob(source: ByteSource, job: SecondPassJob): PassJobRunner {
-  const classifier = createClassifier(job.solution);
-  const crossValidator = crossValidatorOf(job);
+  let scores: SecondRangePart['scores'] | undefined;
+  const onScores = (batch: ScoreBatch): void => {
+    if (!scores) scores = { firstRow: batch.firstRow, rows: 0, k: batch.k, values: new Float64Array(Math.max(1, 4096 * batch.k)) };
+    const needed = (scores.rows + batch.rows) * batch.k;
+    if (scores.values.length < needed) {
+      const grown = new Float64Array(Math.max(needed, 2 * scores.values.length));
+      grown.set(scores.values.subarray(0, scores.rows * batch.k));
+      scores.values = grown;
+    }
+    scores.values.set(batch.scores.subarray(0, batch.rows * batch.k), scores.rows * batch.k);
+    scores.rows += batch.rows;
+  };
+  // Opened once for all the worker's ranges (see openSecondPass).
+  const scanShare = openSecondPass({
+    source,
+    inspection: job.inspection,
+    label: job.label,
+    features: job.features,
+    solution: job.solution,
+    pca: job.pca,
+    classifier: createClassifier(job.solution),
+    crossValidator: crossValidatorOf(job),
+    appearance: [],
+    appearanceLabels: job.appearance,
+    classCounts: job.classCounts,
+    plotQuota: job.plotQuota,
+    topFeatures: job.topFeatures,
+    majorityCandidates: job.majorityCandidates,
+    misclassifiedLimit: job.misclassifiedLimit,
+    rowLimit: null,
+    packSample: true,
+    ...(job.scores ? { onScores } : {}),
+  });
   return {
     async scan(task, control): Promise<SecondRangePart> {
-      let scores: SecondRangePart['scores'] | undefined;
-      const onScores = (batch: ScoreBatch): void => {
-        if (!scores) scores = { firstRow: batch.firstRow, rows: 0, k: batch.k, values: new Float64Array(Math.max(1, 4096 * batch.k)) };
-        const needed = (scores.rows + batch.rows) * batch.k;
-        if (scores.values.length < needed) {
-          const grown = new Float64Array(Math.max(needed, 2 * scores.values.length));
-          grown.set(scores.values.subarray(0, scores.rows * batch.k));
-          scores.values = grown;
-        }
-        scores.values.set(batch.scores.subarray(0, batch.rows * batch.k), scores.rows * batch.k);
-        scores.rows += batch.rows;
-      };
-      const result = await secondPass(
-        {
-          source,
-          inspection: job.inspection,
-          label: job.label,
-          features: job.features,
-          solution: job.solution,
-          pca: job.pca,
-          classifier,
-          crossValidator,
-          appearance: [],
-          appearanceLabels: job.appearance,
-          classCounts: job.classCounts,
-          plotQuota: job.plotQuota,
-          topFeatures: job.topFeatures,
-          majorityCandidates: job.majorityCandidates,
-          misclassifiedLimit: job.misclassifiedLimit,
-          rowLimit: null,
-          packSample: true,
-          ...share(task),
-          start: { classRows: task.classRows ?? [], ...(task.foldRows ? { foldRows: task.foldRows } : {}) },
-          ...(job.scores ? { onScores } : {}),
-        },
-        control,
-      );
-      if (scores) scores.values = scores.values.slice(0, scores.rows * scores.k);
+      scores = undefined;
+      const result = await scanShare({ ...share(task), start: { classRows: task.classRows ?? [], ...(task.foldRows ? { foldRows: task.foldRows } : {}) } }, control);
+      const rangeScores = scores as SecondRangePart['scores'] | undefined;
+      if (rangeScores) rangeScores.values = rangeScores.values.slice(0, rangeScores.rows * rangeScores.k);
       const sample = result.packedSample!;
       delete result.packedSample;
-      return { result, sample, ...(scores ? { scores } : {}) };
+      return { result, sample, ...(rangeScores ? { scores: rangeScores } : {}) };
     },
     finish(): null {
       return null;

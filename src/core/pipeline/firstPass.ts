@@ -17,7 +17,7 @@ import type { FoldParts } from '../foldModels';
 import { FoldAssigner } from '../folds';
 import type { Moments } from '../moments';
 import { MomentsAccumulator } from '../moments';
-import type { ByteRange, CellExample, ScanSummary, TableInspection } from '../read/types';
+import type { ByteRange, CellExample, RowBatch, ScanSummary, TableInspection } from '../read/types';
 import { scanTable } from '../read/index';
 import type { ByteSource, RunControl } from '../source';
 import { DuplicateRows } from './duplicateRows';
@@ -80,6 +80,9 @@ export interface FirstPassResult {
 /** Rows gathered before handing a block to the accumulators. */
 const BLOCK_ROWS = 4096;
 
+/** What changes from one share of the rows to the next (a parallel worker's ranges). */
+export type FirstPassShare = Pick<FirstPassPlan, 'range' | 'rows' | 'foldStart' | 'duplicateSink'>;
+
 export async function firstPass(
   source: ByteSource,
   inspection: TableInspection,
@@ -88,31 +91,51 @@ export async function firstPass(
   /** Read only the data rows before this one (the provisional answer); null = every row. */
   rowLimit: number | null = null,
 ): Promise<FirstPassResult> {
+  return openFirstPass(source, inspection, plan)(plan, control, rowLimit);
+}
+
+/**
+ * Pass 1 set up once for several shares of the rows (a parallel worker's ranges, scanned one after
+ * the other, never two at once; they need `plan.into`'s accumulators, which outlive the shares):
+ * the returned function scans one share. The batch callback is made here, once, not per share:
+ * V8 folds a closure's captured constants into its optimised code only while the closure is the
+ * one made from its source (see openSecondPass).
+ */
+export function openFirstPass(
+  source: ByteSource,
+  inspection: TableInspection,
+  plan: Omit<FirstPassPlan, keyof FirstPassShare>,
+): (share: FirstPassShare, control: RunControl | undefined, rowLimit?: number | null) => Promise<FirstPassResult> {
   const d = plan.features.length;
-  const accumulator = plan.moments ? (plan.into?.moments ?? new MomentsAccumulator(plan.featureNames)) : null;
-  const folds = plan.folds ? (plan.into?.folds ?? new FoldMomentsAccumulator(plan.featureNames, plan.folds.count)) : null;
-  const assigner = plan.folds ? new FoldAssigner(plan.folds.count, plan.folds.seed) : null;
-  if (assigner && plan.foldStart) plan.foldStart.rowsBefore.forEach((rows, order) => assigner.skip(order, rows));
-  const foldOrderOf: number[] = []; // scan label id → order of first appearance in the whole file (with foldStart)
-  const duplicates = new DuplicateRows();
-  const duplicateSink = plan.duplicateSink ?? duplicates;
-  const majority = new MajorityVote(d);
-  const nanCells = new Float64Array(d);
-  const positiveInfinity = new Float64Array(d);
-  const negativeInfinity = new Float64Array(d);
+  let opened = false;
+  const blockValues = new Float64Array(BLOCK_ROWS * d);
+  const blockClasses = new Int32Array(BLOCK_ROWS);
+  const blockFolds = new Int32Array(BLOCK_ROWS);
+
+  // One share's state, set at the start of each scan.
+  let accumulator: MomentsAccumulator | null = null;
+  let folds: FoldMomentsAccumulator | null = null;
+  let assigner: FoldAssigner | null = null;
+  let foldStart: FirstPassShare['foldStart'];
+  let foldOrderOf: number[] = []; // scan label id → order of first appearance in the whole file (with foldStart)
+  let duplicates: DuplicateRows;
+  let duplicateSink: Pick<DuplicateRows, 'add'>;
+  let majority: MajorityVote;
+  let nanCells: Float64Array;
+  let positiveInfinity: Float64Array;
+  let negativeInfinity: Float64Array;
   let labels: readonly string[] = [];
-  const appearanceOf: number[] = []; // scan label id → order of first appearance among used rows, or -1
-  const appearance: number[] = [];
+  let appearanceOf: number[] = []; // scan label id → order of first appearance among used rows, or -1
+  let appearance: number[] = [];
   let rows = 0;
   let used = 0;
   let droppedMissing = 0;
   let droppedNonFinite = 0;
   let labelMissing = 0;
-
-  const blockValues = new Float64Array(BLOCK_ROWS * d);
-  const blockClasses = new Int32Array(BLOCK_ROWS);
-  const blockFolds = new Int32Array(BLOCK_ROWS);
+  let rowLimit: number | null = null;
+  let pass: PassControl;
   let blockRows = 0;
+
   const flush = (): void => {
     if (blockRows === 0) return;
     const values = blockValues.subarray(0, blockRows * d);
@@ -122,101 +145,131 @@ export async function firstPass(
     blockRows = 0;
   };
 
-  const pass = new PassControl('moments', control);
-  const summary = await pass.run(() =>
-    scanTable({
-      source,
-      inspection,
-      plan: { label: plan.label, features: plan.features },
-      control: pass.control,
-      ...(plan.range ? { range: plan.range } : {}),
-      ...(plan.rows ? { rows: plan.rows } : {}),
-      onBatch: (batch, dictionary) => {
-        labels = dictionary;
-        const { values } = batch;
-        for (let i = 0; i < batch.rows; i++) {
-          const row = batch.firstRow + i;
-          if (rowLimit !== null && row >= rowLimit) {
-            pass.stop();
-            break;
-          }
-          rows = row + 1;
-          const label = batch.labels[i]!;
-          let missing = label < 0;
-          if (missing) labelMissing++;
-          let infinite = false;
-          const offset = i * d;
-          for (let j = 0; j < d; j++) {
-            const v = values[offset + j]!;
-            if (v !== v) {
-              nanCells[j]! += 1;
-              missing = true;
-            } else if (v === Infinity) {
-              positiveInfinity[j]! += 1;
-              infinite = true;
-            } else if (v === -Infinity) {
-              negativeInfinity[j]! += 1;
-              infinite = true;
-            }
-          }
-          if (missing) {
-            droppedMissing++;
-            continue;
-          }
-          if (infinite) {
-            droppedNonFinite++;
-            continue;
-          }
-          used++;
-          let order = appearanceOf[label];
-          if (order === undefined || order < 0) {
-            while (appearanceOf.length <= label) appearanceOf.push(-1);
-            order = appearance.length;
-            appearanceOf[label] = order;
-            appearance.push(label);
-          }
-          const at = blockRows * d;
-          for (let j = 0; j < d; j++) blockValues[at + j] = values[offset + j]!;
-          blockClasses[blockRows] = label;
-          if (assigner) {
-            if (plan.foldStart) {
-              let whole = foldOrderOf[label];
-              if (whole === undefined) {
-                whole = plan.foldStart.order.get(labels[label]!) ?? -1;
-                foldOrderOf[label] = whole;
-              }
-              order = whole;
-            }
-            blockFolds[blockRows] = assigner.foldOf(order);
-          }
-          blockRows++;
-          if (blockRows === BLOCK_ROWS) flush();
-          duplicateSink.add(label, values, offset, d, row, batch.lines?.[i]);
-          majority.vote(values, offset);
+  const onBatch = (batch: RowBatch, dictionary: readonly string[]): void => {
+    labels = dictionary;
+    const { values } = batch;
+    for (let i = 0; i < batch.rows; i++) {
+      const row = batch.firstRow + i;
+      if (rowLimit !== null && row >= rowLimit) {
+        pass.stop();
+        break;
+      }
+      rows = row + 1;
+      const label = batch.labels[i]!;
+      let missing = label < 0;
+      if (missing) labelMissing++;
+      let infinite = false;
+      const offset = i * d;
+      for (let j = 0; j < d; j++) {
+        const v = values[offset + j]!;
+        if (v !== v) {
+          nanCells[j]! += 1;
+          missing = true;
+        } else if (v === Infinity) {
+          positiveInfinity[j]! += 1;
+          infinite = true;
+        } else if (v === -Infinity) {
+          negativeInfinity[j]! += 1;
+          infinite = true;
         }
-      },
-    }),
-  );
-  flush();
-  // Rows were left out only when the reader had more than the limit.
-  const cut = rowLimit !== null && (pass.stoppedEarly || (summary !== undefined && summary.rows > rowLimit)) ? rowLimit : null;
-  return {
-    moments: accumulator && !plan.into?.moments ? accumulator.finish() : null,
-    folds,
-    labels: [...labels],
-    appearance,
-    rows: cut === null && summary ? summary.rows : rows,
-    used,
-    droppedMissing,
-    droppedNonFinite,
-    labelMissing,
-    nanCells,
-    positiveInfinity,
-    negativeInfinity,
-    summary: summary ?? null,
-    rowLimit: cut,
-    duplicates,
-    majority,
+      }
+      if (missing) {
+        droppedMissing++;
+        continue;
+      }
+      if (infinite) {
+        droppedNonFinite++;
+        continue;
+      }
+      used++;
+      let order = appearanceOf[label];
+      if (order === undefined || order < 0) {
+        while (appearanceOf.length <= label) appearanceOf.push(-1);
+        order = appearance.length;
+        appearanceOf[label] = order;
+        appearance.push(label);
+      }
+      const at = blockRows * d;
+      for (let j = 0; j < d; j++) blockValues[at + j] = values[offset + j]!;
+      blockClasses[blockRows] = label;
+      if (assigner) {
+        if (foldStart) {
+          let whole = foldOrderOf[label];
+          if (whole === undefined) {
+            whole = foldStart.order.get(labels[label]!) ?? -1;
+            foldOrderOf[label] = whole;
+          }
+          order = whole;
+        }
+        blockFolds[blockRows] = assigner.foldOf(order);
+      }
+      blockRows++;
+      if (blockRows === BLOCK_ROWS) flush();
+      duplicateSink.add(label, values, offset, d, row, batch.lines?.[i]);
+      majority.vote(values, offset);
+    }
+  };
+
+  return async (share, control, limit = null) => {
+    if (opened && (!plan.moments || !plan.into?.moments) && (!plan.folds || !plan.into?.folds)) {
+      throw new Error('internal: a first pass scans several shares only into accumulators that outlive them (plan.into)');
+    }
+    opened = true;
+    accumulator = plan.moments ? (plan.into?.moments ?? new MomentsAccumulator(plan.featureNames)) : null;
+    folds = plan.folds ? (plan.into?.folds ?? new FoldMomentsAccumulator(plan.featureNames, plan.folds.count)) : null;
+    assigner = plan.folds ? new FoldAssigner(plan.folds.count, plan.folds.seed) : null;
+    foldStart = share.foldStart;
+    if (assigner && foldStart) foldStart.rowsBefore.forEach((count, order) => assigner!.skip(order, count));
+    foldOrderOf = [];
+    duplicates = new DuplicateRows();
+    duplicateSink = share.duplicateSink ?? duplicates;
+    majority = new MajorityVote(d);
+    nanCells = new Float64Array(d);
+    positiveInfinity = new Float64Array(d);
+    negativeInfinity = new Float64Array(d);
+    labels = [];
+    appearanceOf = [];
+    appearance = [];
+    rows = 0;
+    used = 0;
+    droppedMissing = 0;
+    droppedNonFinite = 0;
+    labelMissing = 0;
+    rowLimit = limit;
+    blockRows = 0;
+    pass = new PassControl('moments', control);
+    const summary = await pass.run(() =>
+      scanTable({
+        source,
+        inspection,
+        plan: { label: plan.label, features: plan.features },
+        control: pass.control,
+        ...(share.range ? { range: share.range } : {}),
+        ...(share.rows ? { rows: share.rows } : {}),
+        onBatch,
+      }),
+    );
+    flush();
+    // Rows were left out only when the reader had more than the limit.
+    const cut = rowLimit !== null && (pass.stoppedEarly || (summary !== undefined && summary.rows > rowLimit)) ? rowLimit : null;
+    return {
+      moments: accumulator && !plan.into?.moments ? accumulator.finish() : null,
+      folds,
+      labels: [...labels],
+      appearance,
+      rows: cut === null && summary ? summary.rows : rows,
+      used,
+      droppedMissing,
+      droppedNonFinite,
+      labelMissing,
+      nanCells,
+      positiveInfinity,
+      negativeInfinity,
+      summary: summary ?? null,
+      rowLimit: cut,
+      duplicates,
+      majority,
+    };
   };
 }
 
