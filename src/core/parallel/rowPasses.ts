@@ -45,8 +45,6 @@ export class ParallelFallback extends Error {
   override readonly name = 'ParallelFallback';
 }
 
-/** Ranges per worker: enough for the fast workers to take over from a slow one. */
-const RANGES_PER_WORKER = 8;
 /**
  * Text ranges shrink as the split goes on (guided self-scheduling, Polychronopoulos & Kuck 1987):
  * each is the rest of the file over GUIDED_SHARES · workers, within MIN–MAX_RANGE_BYTES. Large
@@ -63,9 +61,9 @@ export function canScanInParallel(scanner: RangeScanner | undefined, inspection:
 }
 
 /**
- * The shares of a source: text split at row starts; Parquet split between row groups, about
- * RANGES_PER_WORKER per worker, or when there are fewer than two groups per worker, each group
- * split into one run of rows per worker; null when there is only one share.
+ * The shares of a source: text split at row starts; Parquet split between row groups in shrinking
+ * shares of whole groups, or when there are fewer than two groups per worker, each group split
+ * into one run of rows per worker; null when there is only one share.
  */
 async function splitSource(source: ByteSource, inspection: TableInspection, scanner: RangeScanner): Promise<SourceShare[] | null> {
   if (inspection.format !== 'parquet') {
@@ -91,13 +89,14 @@ async function splitSource(source: ByteSource, inspection: TableInspection, scan
     }
     return shares.length < 2 ? null : shares;
   }
-  const target = total / (scanner.workers * RANGES_PER_WORKER);
+  // Whole groups in shrinking shares, as text ranges shrink (GUIDED_SHARES): the last shares are
+  // single groups, so the threads finish together.
   const shares: SourceShare[] = [];
   let start = 0;
   let rows = 0;
   groups.forEach((count, g) => {
     rows += count;
-    if (rows >= target || g === groups.length - 1) {
+    if (rows >= (total - start) / (GUIDED_SHARES * scanner.workers) || g === groups.length - 1) {
       shares.push({ rows: { start, end: start + rows }, bytes: (source.size * rows) / Math.max(1, total) });
       start += rows;
       rows = 0;
