@@ -3,6 +3,11 @@
  * request as its first message (a spare thread is started before it is needed), posts progress,
  * the content hash, at most one provisional and one final result (or an error), and then ends.
  * The host stops it with `Worker.terminate()`.
+ *
+ * After a provisional result, the fit worker runs the full analysis in a thread of its own (the
+ * same script, started with FULL_ANALYSIS_ROLE as its workerData): it takes a FitRequest, posts
+ * FromWorker messages (no 'hashed': the fit worker hashes the file meanwhile) and ends. Terminating
+ * the fit worker stops that thread too (Node stops a thread's own workers with it).
  */
 import type { FitOptions } from '../core/types';
 import type { ColumnChoice, PanelReport } from '../shared/messages';
@@ -41,6 +46,9 @@ export interface WorkerTiming {
   analysisStarted: number;
   analysisEnded: number;
 }
+
+/** workerData of the thread a fit worker starts for its full analysis (see above). */
+export const FULL_ANALYSIS_ROLE = 'scatterwise-full-analysis';
 
 export type FromWorker =
   | { type: 'progress'; phase: string; fraction: number }
