@@ -46,10 +46,10 @@ export function summarize(runs: TableRun[]): Summary {
 const fixed = (value: number, digits: number): string => (Number.isFinite(value) ? value.toFixed(digits) : 'n/a');
 
 /** One Markdown table per data shape: median wall time, MB/s, CPU, peak RSS, ratios. */
-export function tableMarkdown(shape: TableShape, csvBytes: number, rows: Map<ToolId, Summary>): string {
+export function tableMarkdown(shape: TableShape, csvBytes: number, rows: Map<ToolId, Summary>, layout?: string): string {
   const ours = rows.get('scatterwise');
   const lines = [
-    `**${shape.title}** (${(csvBytes / 1e6).toFixed(0)} MB as CSV${shape.format === 'parquet' ? '; MB/s are CSV-equivalent' : ''})`,
+    `**${shape.title}** (${(csvBytes / 1e6).toFixed(0)} MB as CSV${shape.format === 'parquet' ? '; MB/s are CSV-equivalent' : ''}${layout ? `; ${layout}` : ''})`,
     '',
     '| tool | median wall s | MB/s | CPU s | peak RSS MB | scatterwise faster by | ÷ floor (time) | rows | cross-validated accuracy |',
     '|---|---:|---:|---:|---:|---:|---:|---:|---|',

@@ -6,6 +6,7 @@
  */
 import { existsSync, statSync } from 'node:fs';
 import { join } from 'node:path';
+import { asyncBufferFromFile, parquetMetadataAsync } from 'hyparquet';
 import { writePumpCsv } from './pumpTable';
 
 export type ShapeId = 'narrow' | 'wide200' | 'wide1000' | 'parquet' | 'parquet-1' | 'kernel' | 'frames' | 'editor';
@@ -90,4 +91,44 @@ export async function writeParquet(csv: string, parquet: string, oneGroup: boole
   const groups = oneGroup ? ', ROW_GROUP_SIZE 100000000' : '';
   await connection.run(`COPY (SELECT * FROM read_csv(${quoted(csv)}, header = true)) TO ${quoted(parquet)} (FORMAT parquet, COMPRESSION snappy${groups})`);
   connection.closeSync();
+}
+
+/** What a Parquet copy holds, from its footer: a reader's memory and speed depend on it. */
+export interface ParquetLayout {
+  rowGroups: number;
+  /** Dictionary-encoded column chunks, of all column chunks. */
+  dictionaryChunks: number;
+  columnChunks: number;
+  /**
+   * Bytes of the largest row group's dictionary pages (from each chunk's dictionary page offset to
+   * its first data page: header included, as stored): a reader holds a group's dictionaries while
+   * it reads the group, since any index may point anywhere in its dictionary.
+   */
+  largestGroupDictionaryBytes: number;
+}
+
+export async function parquetLayout(file: string): Promise<ParquetLayout> {
+  const metadata = await parquetMetadataAsync(await asyncBufferFromFile(file));
+  let dictionaryChunks = 0;
+  let columnChunks = 0;
+  let largestGroupDictionaryBytes = 0;
+  for (const group of metadata.row_groups) {
+    let groupBytes = 0;
+    for (const chunk of group.columns) {
+      columnChunks++;
+      const meta = chunk.meta_data;
+      if (meta?.dictionary_page_offset === undefined) continue;
+      dictionaryChunks++;
+      groupBytes += Number(meta.data_page_offset) - Number(meta.dictionary_page_offset);
+    }
+    largestGroupDictionaryBytes = Math.max(largestGroupDictionaryBytes, groupBytes);
+  }
+  return { rowGroups: metadata.row_groups.length, dictionaryChunks, columnChunks, largestGroupDictionaryBytes };
+}
+
+/** The layout in a few words, for the table's heading. */
+export function layoutText(layout: ParquetLayout): string {
+  const groups = `${layout.rowGroups.toLocaleString('en')} row group${layout.rowGroups === 1 ? '' : 's'}`;
+  if (layout.dictionaryChunks === 0) return `${groups}, no dictionary pages`;
+  return `${groups}, ${layout.dictionaryChunks} of ${layout.columnChunks} column chunks dictionary-encoded, the largest group's dictionary pages ${(layout.largestGroupDictionaryBytes / 1e6).toFixed(0)} MB`;
 }
