@@ -19,7 +19,7 @@ import { CELL_MISSING, CELL_TEXT } from './cellValue';
 import { ColumnSample } from './columnSample';
 import { isParquetMagic } from './format';
 import { asyncBufferOf, ParquetFeatureReader, textOf } from './parquetValues';
-import { ColumnBuffers, FlatColumnCursor, type ColumnPiece, type CursorTuning } from './parquetCursor';
+import { ColumnBuffers, FlatColumnCursor, GrowingDictionary, type ColumnPiece, type CursorTuning, type KeptDictionary } from './parquetCursor';
 import { parquetColumns, type ParquetColumn } from './parquetSchema';
 import { PassProgress } from './progress';
 import { readCopy } from './readBytes';
@@ -46,9 +46,10 @@ interface OpenedParquet {
   /**
    * The decoded dictionary pages of the row group read last, by file offset: the next pass over the
    * same group (a file of one large row group is read three times, its dictionaries can be most of
-   * its values) takes them from here instead of decoding them again beside the old ones.
+   * its values) takes them from here instead of decoding them again beside the old ones. A large
+   * number dictionary is kept as decoded so far (GrowingDictionary): the next pass goes on from there.
    */
-  dictionaries: { group: RowGroup | null; byOffset: Map<number, DecodedArray>; shared: Map<number, DecodedArray> };
+  dictionaries: { group: RowGroup | null; byOffset: Map<number, KeptDictionary>; shared: Map<number, DecodedArray> };
 }
 
 /**
@@ -433,7 +434,8 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
 /**
  * For a file of one row group read by several threads (each its own run of rows, every one needing
  * every dictionary): the number dictionaries this thread has decoded for the group (inspect and
- * earlier passes decode them) moved into shared memory, so that the threads hold them once. Null
+ * earlier passes decode them, in part: decoded to their ends here) moved into shared memory, so
+ * that the threads hold them once. Null
  * when there is nothing to share, or no shared memory (a browser page that is not cross-origin isolated).
  */
 export async function shareParquetDictionaries(source: ByteSource): Promise<SharedDictionaries | null> {
@@ -442,7 +444,10 @@ export async function shareParquetDictionaries(source: ByteSource): Promise<Shar
   const kept = opened.dictionaries;
   if (opened.metadata.row_groups.length !== 1 || kept.group !== opened.metadata.row_groups[0]) return null;
   const shared: SharedDictionaries = [];
-  for (const [offset, values] of kept.byOffset) {
+  for (const [offset, entry] of kept.byOffset) {
+    // A dictionary decoded in part so far (GrowingDictionary) is decoded to its end: the other threads read anywhere in it.
+    if (entry instanceof GrowingDictionary) await entry.fillTo(entry.values.length);
+    const values = entry instanceof GrowingDictionary ? entry.values : entry;
     if (!isNumberArray(values)) continue;
     let copy: NumberArray = values;
     if (!(values.buffer instanceof SharedArrayBuffer)) {

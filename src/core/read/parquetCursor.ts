@@ -7,8 +7,10 @@
  * (compressed) is read and decoded whole, with hyparquet's published decoders
  * (`hyparquet/src/*.js`); a larger one is decoded as it is read (parquetStream.ts) when it is a v1
  * data page, uncompressed or snappy, of a column with definition levels 0 or 1, holding PLAIN
- * numbers or dictionary indexes; else whole. A dictionary page is always whole: every index may
- * point anywhere in it. So memory per column is its dictionary plus about two windows.
+ * numbers or dictionary indexes; else whole. A large dictionary page of plain numbers is decoded
+ * into its array as far as the indexes read so far reach (GrowingDictionary), any other one whole:
+ * every index may point anywhere in it. So memory per column is its dictionary plus about two
+ * windows (three while a dictionary grows).
  *
  * Why not hyparquet's column reader: it passes every value of a nullable column through its
  * nested-list assembly (assembleLists), which took about half the time of a scan (DuckDB output,
@@ -120,6 +122,8 @@ export class ColumnBuffers {
 export class FlatColumnCursor {
   private window: SourceWindow;
   private dictionary: DecodedArray | null = null;
+  /** The dictionary while it is decoded only in part (its values are `dictionary`). */
+  private growing: GrowingDictionary | null = null;
   private whole: WholePage | null = null;
   private streamed: StreamedPage | null = null;
   private rowsDone = 0;
@@ -135,7 +139,7 @@ export class FlatColumnCursor {
     private readonly chunkEnd: number,
     readonly rows: number,
     private readonly tuning: CursorTuning,
-    private readonly dictionaries: Map<number, DecodedArray> | undefined,
+    private readonly dictionaries: Map<number, KeptDictionary> | undefined,
     private readonly buffers: ColumnBuffers,
   ) {
     this.window = new SourceWindow(source, start, chunkEnd, tuning.readBytes, buffers.window);
@@ -169,7 +173,7 @@ export class FlatColumnCursor {
     column: string,
     compressors: Compressors,
     tuning: CursorTuning,
-    dictionaries?: Map<number, DecodedArray>,
+    dictionaries?: Map<number, KeptDictionary>,
     buffers: ColumnBuffers = new ColumnBuffers(),
   ): FlatColumnCursor | null {
     const chunk = group.columns.find((candidate) => candidate.meta_data?.path_in_schema.length === 1 && candidate.meta_data.path_in_schema[0] === column);
@@ -236,7 +240,14 @@ export class FlatColumnCursor {
         indexes = this.buffers.indexes;
         await page.indexes.read(present, indexes, 0);
         const size = this.dictionary?.length ?? 0;
-        for (let i = 0; i < present; i++) if (indexes[i] >= size) throw new StreamDamaged(`a dictionary index ${indexes[i]} beyond the ${size} entries`);
+        // The indexes or'ed: at least the largest (at most twice it), without a branch per index.
+        let bound = 0;
+        for (let i = 0; i < present; i++) bound |= indexes[i];
+        if (bound >= size) for (let i = 0; i < present; i++) if (indexes[i] >= size) throw new StreamDamaged(`a dictionary index ${indexes[i]} beyond the ${size} entries`);
+        if (this.growing && bound >= this.growing.filled) {
+          await this.growing.fillTo(Math.min(size, bound + 1));
+          if (this.growing.complete) this.growing = null;
+        }
       } else {
         const Type = NUMBER_ARRAYS[this.decoder.type as StreamedType];
         if (!(this.buffers.values instanceof Type) || this.buffers.values.length < present) this.buffers.values = new Type(Math.max(present, 1024));
@@ -258,6 +269,7 @@ export class FlatColumnCursor {
   /** Decodes a streamed page whole from the file, positioned at the row the stream had reached. */
   private async fallBack(page: StreamedPage): Promise<WholePage> {
     const compressed = await readExactly(this.source, page.dataOffset, page.header.compressed_page_size);
+    await this.completeDictionary();
     const whole = this.decodeWhole(compressed, page.header);
     this.streamed = null;
     this.keepSnappy(page.bytes);
@@ -342,13 +354,19 @@ export class FlatColumnCursor {
     const size = header.compressed_page_size;
     if (header.type === 'DICTIONARY_PAGE') {
       // Decoded already by an earlier pass over this row group: the same values (never written to).
-      const known = this.dictionaries?.get(dataOffset);
+      const known = this.dictionaries?.get(dataOffset) ?? this.growingDictionary(header, dataOffset);
       if (known) {
         this.window.discard(size);
-        this.dictionary = known;
+        this.dictionaries?.set(dataOffset, known);
+        if (known instanceof GrowingDictionary) {
+          this.dictionary = known.values;
+          this.growing = known.complete ? null : known;
+        } else {
+          this.dictionary = known;
+        }
         return;
       }
-      this.dictionary = (await this.streamedDictionary(header, dataOffset)) ?? this.wholeDictionary(await this.window.take(size), header);
+      this.dictionary = this.wholeDictionary(await this.window.take(size), header);
       this.dictionaries?.set(dataOffset, this.dictionary);
       return;
     }
@@ -361,6 +379,7 @@ export class FlatColumnCursor {
       await this.openStreamed(header, dataOffset);
       return;
     }
+    await this.completeDictionary();
     this.whole = this.decodeWhole(await this.window.take(size), header);
   }
 
@@ -371,38 +390,26 @@ export class FlatColumnCursor {
   }
 
   /**
-   * A large dictionary of plain numbers decompressed as it is read, straight into its array (in
-   * shared memory where there is one, so that threads reading the same row group can hold it once:
-   * shareParquetDictionaries), without the page's compressed and decompressed copies beside it
-   * (DuckDB's dictionaries can be megabytes a column). Null when it is read whole instead.
+   * A large dictionary of plain numbers, decompressed into its array only as far as the indexes read
+   * reach (GrowingDictionary). Null when it is read whole instead.
    */
-  private async streamedDictionary(header: PageHeader, dataOffset: number): Promise<DecodedArray | null> {
+  private growingDictionary(header: PageHeader, dataOffset: number): GrowingDictionary | null {
     const size = header.compressed_page_size;
     const count = header.dictionary_page_header?.num_values ?? 0;
     if (size <= this.tuning.streamPageBytes || (this.codec !== 'UNCOMPRESSED' && this.codec !== 'SNAPPY')) return null;
     if (!(this.decoder.type in NUMBER_ARRAYS) || !plainNumbers(this.element)) return null;
     const Type = NUMBER_ARRAYS[this.decoder.type as StreamedType];
-    const length = count * Type.BYTES_PER_ELEMENT;
-    if (header.uncompressed_page_size < length) throw new StreamDamaged(`a dictionary page of ${header.uncompressed_page_size} bytes for ${count} values`);
-    const memory = typeof SharedArrayBuffer === 'undefined' ? new ArrayBuffer(length) : new SharedArrayBuffer(length);
-    const target = new Uint8Array(memory);
-    try {
-      const bytes: PageBytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(this.window, size, header.uncompressed_page_size, this.tuning.snappyHistoryBytes, this.takeSnappy()) : new PlainPageBytes(this.window, size);
-      for (let filled = 0; filled < length; ) {
-        const n = Math.min(DICTIONARY_PIECE, length - filled);
-        await bytes.ensure(n);
-        target.set(bytes.bytes.subarray(bytes.position, bytes.position + n), filled);
-        bytes.position += n;
-        filled += n;
-      }
-      this.keepSnappy(bytes);
-    } catch (error) {
-      if (!(error instanceof StreamFallback)) throw error;
-      this.moveWindow(dataOffset + size);
-      return this.wholeDictionary(await readExactly(this.source, dataOffset, size), header);
-    }
-    if (this.window.position !== dataOffset + size) this.moveWindow(dataOffset + size);
-    return new Type(memory as ArrayBuffer) as DecodedArray;
+    if (header.uncompressed_page_size < count * Type.BYTES_PER_ELEMENT) throw new StreamDamaged(`a dictionary page of ${header.uncompressed_page_size} bytes for ${count} values`);
+    const decodeWhole = (compressed: Uint8Array): DecodedArray => this.wholeDictionary(compressed, header);
+    return new GrowingDictionary(this.source, Type, count, dataOffset, header, this.codec, this.tuning, decodeWhole);
+  }
+
+  /** Decodes the rest of a growing dictionary: before a data page is read whole, which may take any entry. */
+  private async completeDictionary(): Promise<void> {
+    const growing = this.growing;
+    if (!growing) return;
+    await growing.fillTo(growing.values.length);
+    this.growing = null;
   }
 
   private takeSnappy(): Uint8Array | undefined {
@@ -446,6 +453,7 @@ export class FlatColumnCursor {
     } catch (error) {
       if (!(error instanceof StreamFallback)) throw error;
       this.moveWindow(dataOffset + size);
+      await this.completeDictionary();
       this.whole = this.decodeWhole(await readExactly(this.source, dataOffset, size), header);
     }
   }
@@ -490,6 +498,88 @@ export class FlatColumnCursor {
   private wholePage(rows: number, definitionLevels: ArrayLike<number> | undefined, values: DecodedArray, indexes: Int32Array | null): WholePage {
     const levels = definitionLevels && definitionLevels.length > 0 ? definitionLevels : null;
     return { rows, rowAt: 0, valueAt: 0, levels, values, indexes };
+  }
+}
+
+/** A decoded dictionary page as a scan keeps it for its next pass over the row group. */
+export type KeptDictionary = DecodedArray | GrowingDictionary;
+
+type NumberArrayType = (typeof NUMBER_ARRAYS)[StreamedType];
+
+/**
+ * A large dictionary of plain numbers, decompressed straight into its array (no compressed or
+ * decompressed page copy beside it; in shared memory where there is one, so that the threads that
+ * read the same row group hold it once: shareParquetDictionaries) and only as far as the indexes
+ * read so far reach. Writers number the entries in order of first appearance (DuckDB, Arrow,
+ * parquet-mr), so the first rows of a row group take only its first entries: a first look at a file
+ * of one large row group used to decode every dictionary first (the 1 GB benchmark table's: ~130 MB,
+ * most of its first look's 1.3 s). A pass over the whole group fills it as it goes, once; the array
+ * has its full length from the start (memory not yet written costs nothing).
+ */
+export class GrowingDictionary {
+  readonly values: DecodedArray;
+  /** Entries decoded, from the first. */
+  filled = 0;
+  private readonly target: Uint8Array;
+  private bytes: PageBytes | null = null;
+  private growing: Promise<void> = Promise.resolve();
+
+  constructor(
+    private readonly source: ByteSource,
+    Type: NumberArrayType,
+    count: number,
+    private readonly dataOffset: number,
+    private readonly header: PageHeader,
+    private readonly codec: CompressionCodec,
+    private readonly tuning: CursorTuning,
+    /** The page decoded whole from its compressed bytes (when the stream cannot go on: StreamFallback). */
+    private readonly decodeWhole: (compressed: Uint8Array) => DecodedArray,
+  ) {
+    const length = count * Type.BYTES_PER_ELEMENT;
+    const memory = typeof SharedArrayBuffer === 'undefined' ? new ArrayBuffer(length) : new SharedArrayBuffer(length);
+    this.values = new Type(memory as ArrayBuffer) as DecodedArray;
+    this.target = new Uint8Array(memory);
+  }
+
+  get complete(): boolean {
+    return this.filled >= this.values.length;
+  }
+
+  /** Decodes the entries before `entries` (and a piece more, as later indexes tend to follow). One fill at a time. */
+  fillTo(entries: number): Promise<void> {
+    if (entries <= this.filled) return this.growing;
+    this.growing = this.growing.then(() => this.grow(entries));
+    return this.growing;
+  }
+
+  private async grow(entries: number): Promise<void> {
+    const total = this.values.length;
+    if (entries <= this.filled) return;
+    const width = this.target.length / Math.max(1, total);
+    const piece = Math.max(1, Math.floor(DICTIONARY_PIECE / width));
+    const want = Math.min(total, Math.max(entries, this.filled + piece));
+    try {
+      if (!this.bytes) {
+        const size = this.header.compressed_page_size;
+        const window = new SourceWindow(this.source, this.dataOffset, this.dataOffset + size, this.tuning.readBytes);
+        this.bytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(window, size, this.header.uncompressed_page_size, this.tuning.snappyHistoryBytes) : new PlainPageBytes(window, size);
+      }
+      const bytes = this.bytes;
+      while (this.filled < want) {
+        const n = Math.min(piece, want - this.filled);
+        await bytes.ensure(n * width);
+        this.target.set(bytes.bytes.subarray(bytes.position, bytes.position + n * width), this.filled * width);
+        bytes.position += n * width;
+        this.filled += n;
+      }
+    } catch (error) {
+      if (!(error instanceof StreamFallback)) throw error;
+      const whole = this.decodeWhole(await readExactly(this.source, this.dataOffset, this.header.compressed_page_size));
+      (this.values as Float64Array).set(whole as Float64Array);
+      this.filled = total;
+    }
+    // Decoded to the end: the page stream's window and buffers go.
+    if (this.filled >= total) this.bytes = null;
   }
 }
 

@@ -4,6 +4,7 @@
  * JSON, which comes from DuckDB reading the file back or from the data given to the writer.
  */
 import { strict as assert } from 'node:assert';
+import { parquetMetadata } from 'hyparquet';
 import { parquetWriteBuffer } from 'hyparquet-writer';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -328,4 +329,57 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
       );
     });
   }
+
+  it('a first look at the first rows decodes only the start of a large dictionary; later reads go on from there', async () => {
+    const { DuckDBInstance } = await import('@duckdb/node-api');
+    const connection = await (await DuckDBInstance.create(':memory:')).connect();
+    const path = join(folder, 'first-look.parquet');
+    // 200 003 distinct readings, each six times: DuckDB keeps a dictionary (it does not at a quarter
+    // distinct), its entries in order of first appearance.
+    await connection.run(`CREATE TABLE pumps AS SELECT ((i % 200003) * 0.001)::DOUBLE AS reading, ['healthy', 'cavitation'][i % 2 + 1] AS fault FROM range(1200018) t(i)`);
+    await connection.run(`COPY pumps TO '${path}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 10000000)`);
+    const expected = (await connection.runAndReadAll(`SELECT reading FROM read_parquet('${path}')`)).getRows().map((row) => Number(row[0]));
+    connection.closeSync();
+    const bytes = new Uint8Array(readFileSync(path));
+    const metadata = parquetMetadata(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);
+    assert.equal(metadata.row_groups.length, 1);
+    const chunk = metadata.row_groups[0]!.columns[0]!.meta_data!;
+    assert.ok(chunk.dictionary_page_offset !== undefined, 'the readings are dictionary-encoded');
+    const dictionaryStart = Number(chunk.dictionary_page_offset);
+    const dictionaryEnd = Number(chunk.data_page_offset);
+    const dictionaryBytes = dictionaryEnd - dictionaryStart;
+    assert.ok(dictionaryBytes > 800_000, `a dictionary of ${dictionaryBytes} bytes`);
+
+    let read = 0; // bytes of the dictionary page read (every read counted, overlapping or not)
+    const inner = memorySource('first-look.parquet', bytes);
+    const source: ByteSource = {
+      name: inner.name,
+      size: inner.size,
+      read: async (offset, length) => {
+        const piece = await inner.read(offset, length);
+        read += Math.max(0, Math.min(offset + piece.length, dictionaryEnd) - Math.max(offset, dictionaryStart));
+        return piece;
+      },
+    };
+    // The inspection's sample and the first 1 000 rows, as the editor's first look reads them.
+    const inspection = await inspectTable(source);
+    const first = await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], {}, { start: 0, end: 1000 }, source);
+    assert.deepEqual(first.values, expected.slice(0, 1000));
+    assert.ok(read < dictionaryBytes / 2, `${read} bytes of the dictionary page read, of ${dictionaryBytes}`);
+    // The whole group through the same source: its dictionary goes on growing from the entries decoded.
+    const all = await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], { batchRows: 4096 }, undefined, source);
+    assert.deepEqual(all.values, expected);
+    // A run from the middle of the group, on its own: its first indexes reach far into the dictionary.
+    const middle = await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], {}, { start: 600_000, end: 600_100 }, memorySource('first-look.parquet', bytes));
+    assert.deepEqual(middle.values, expected.slice(600_000, 600_100));
+    // Shared with another thread after a part was decoded: decoded to its end first.
+    const partly = memorySource('first-look.parquet', bytes);
+    await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], {}, { start: 0, end: 10 }, partly);
+    const shared = await shareParquetDictionaries(partly);
+    assert.ok(shared && shared.length === 1);
+    const adopting = memorySource('first-look.parquet', bytes);
+    await adoptParquetDictionaries(adopting, structuredClone(shared));
+    const rest = await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], { batchRows: 4096 }, { start: 900_000, end: expected.length }, adopting);
+    assert.deepEqual(rest.values, expected.slice(900_000));
+  });
 });
