@@ -64,8 +64,8 @@ dictionary, so they come on top of the fit's own memory (the default-groups copy
 value read is a load from a random place in them, which the caches do not hold: 20 ns per
 value in pass 1 and 28 ns in pass 2 with the passes instrumented, 4.4 s of CPU over the two passes'
 91 million values each, where a plain page's values are copied in order. Reading the dictionaries
-(and first touching as much fresh memory) takes ~0.6 s, once, at inspection; the threads
-share them. Visiting the lookups in page order (a counting sort per batch) measured no faster in
+(and first touching as much fresh memory) takes ~0.6 s, once: as the first pass goes in one thread,
+before it when two threads share them (a first look reads only their first entries). Visiting the lookups in page order (a counting sort per batch) measured no faster in
 isolation: the cost is the cache miss, not the address translation.
 
 ## Results
