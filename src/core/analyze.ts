@@ -141,13 +141,22 @@ function checkRows(source: string, roles: ColumnRoles, pass: FirstPassResult): v
 }
 
 /**
+ * At most this many rows in a provisional answer, whatever its bytes hold: its time goes with the
+ * rows it reads (both passes, the leave-one-out scoring), and a compact format holds more rows per
+ * byte. The 1 GB benchmark table in 3 MiB: 14 012 rows as CSV, 36 590 as Parquet in one row
+ * group, whose first look the editor's worker then took 0.73 s to analyse against the CSV's 0.56 s.
+ */
+export const PROVISIONAL_ROWS_MAX = 20_000;
+
+/**
  * The provisional answer reads the first rows, as many as fit in `provisionalBytes` by the
- * inspection's row estimate: ⌈estimatedRows · provisionalBytes / size⌉. A row count rather than a
- * byte offset, so both passes cut at the same row whatever the reader's chunking.
+ * inspection's row estimate (⌈estimatedRows · provisionalBytes / size⌉), at most
+ * PROVISIONAL_ROWS_MAX. A row count rather than a byte offset, so both passes cut at the same row
+ * whatever the reader's chunking.
  */
 function provisionalRowLimit(inspection: TableInspection, size: number, provisionalBytes: number | undefined): number | null {
   if (provisionalBytes === undefined || !(provisionalBytes < size) || size === 0) return null;
-  return Math.max(1, Math.ceil((inspection.estimatedRows * Math.max(0, provisionalBytes)) / size));
+  return Math.min(PROVISIONAL_ROWS_MAX, Math.max(1, Math.ceil((inspection.estimatedRows * Math.max(0, provisionalBytes)) / size)));
 }
 
 export async function analyze(source: ByteSource, partial?: Partial<FitOptions>, control?: AnalysisControl): Promise<AnalysisResult> {

@@ -1,6 +1,6 @@
 import { strict as assert } from 'node:assert';
 import { EigenvalueDecomposition, Matrix, inverse } from 'ml-matrix';
-import { analyze } from '../../src/core/analyze';
+import { analyze, PROVISIONAL_ROWS_MAX } from '../../src/core/analyze';
 import { CancelledError, DataError } from '../../src/core/errors';
 import { verdict } from '../../src/core/format/verdict';
 import type { FitOptions, FitReport } from '../../src/core/types';
@@ -279,6 +279,11 @@ describe('analyze: the pipeline end to end', function () {
     assert.equal(report.provisional, true);
     assert.ok(report.rows.total < 12000 && report.rows.total > 0, `${report.rows.total} rows`);
     assert.equal(sum(report.confusion.matrix.flat()), report.rows.used);
+    // Many short rows in the bytes allowed: at most PROVISIONAL_ROWS_MAX of them.
+    const short = `reading,fault\n${Array.from({ length: 60_000 }, (_, i) => `${i % 97},${FAULTS[i % 3]}`).join('\n')}\n`;
+    const capped = await analyze(sourceOf(short), { cv: 'none' }, { provisionalBytes: short.length / 2 });
+    assert.equal(capped.report.provisional, true);
+    assert.equal(capped.report.rows.total, PROVISIONAL_ROWS_MAX);
     const abort = new AbortController();
     abort.abort();
     await assert.rejects(analyze(sourceOf(text), {}, { signal: abort.signal }), CancelledError);
