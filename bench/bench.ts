@@ -104,8 +104,9 @@ async function main(): Promise<void> {
   // maxRSS starts from its parent's at spawn time).
   const s = sizes(quick);
   const tables = tableShapes(DATA, s).filter((t) => shapes.includes(t.id));
-  const narrowTable = tableShapes(DATA, s)[0]!;
-  const toPrepare = shapes.includes('editor') && !tables.includes(narrowTable) ? [...tables, narrowTable] : tables;
+  // The editor opens the 1 GB table as CSV and as both Parquet copies.
+  const editorTables = shapes.includes('editor') ? tableShapes(DATA, s).filter((t) => t.id === 'narrow' || t.format === 'parquet') : [];
+  const toPrepare = [...tables, ...editorTables.filter((t) => !tables.includes(t))];
   for (const table of toPrepare) {
     const made = spawnSync(process.execPath, [script, '--child', 'prepare', '--shape', table.id, ...(quick ? ['--quick'] : [])], { stdio: 'inherit' });
     if (made.status !== 0) throw new Error(`preparing ${table.id} failed`);
@@ -164,9 +165,13 @@ async function main(): Promise<void> {
     for (const f of frames) console.log(`frames ${f.points} points: p50 ${f.p50.toFixed(1)} ms, p95 ${f.p95.toFixed(1)} ms, max ${f.max.toFixed(1)} ms over ${f.frames} frames; first drawn ${f.firstDrawSeconds.toFixed(2)} s after the result`);
   }
 
-  // The editor in a real VS Code: provisional answer and host event-loop delay on the narrow table.
-  let editor: EditorFigures | null = null;
-  if (shapes.includes('editor')) editor = runEditor(tableShapes(DATA, s)[0]!, rounds);
+  // The editor in a real VS Code: provisional answer and host event-loop delay on the narrow table,
+  // as CSV and as both Parquet copies.
+  const editor: EditorFigures[] = [];
+  for (const table of editorTables) {
+    const figures = runEditor(table, rounds);
+    if (figures) editor.push(figures);
+  }
 
   // Summaries, targets, tables.
   machine.loadAfter = loadavg().map((l) => l.toFixed(1)).join(', ');
@@ -186,7 +191,7 @@ async function main(): Promise<void> {
   }
   if (kernels.length > 0) sections.push(kernelMarkdown(kernels));
   if (frames.length > 0) sections.push(framesMarkdown(frames));
-  if (editor) sections.push(editorMarkdown(editor));
+  if (editor.length > 0) sections.push(editorMarkdown(editor));
   const results = [machineMarkdown(machine), '', ...sections.flatMap((section) => [section, '']), '**Targets**', '', targetsMarkdown(targets)].join('\n');
   console.log(`\n${results}\n`);
   if (writeDocs) {
@@ -195,7 +200,11 @@ async function main(): Promise<void> {
   }
 }
 
+const EDITOR_FILE_KINDS: Partial<Record<TableShape['id'], string>> = { narrow: 'CSV', parquet: 'Parquet', 'parquet-1': 'Parquet, one row group' };
+
 interface EditorFigures {
+  /** Which copy of the table: CSV, Parquet, Parquet in one row group. */
+  table: string;
   bytes: number;
   rows: number;
   provisionalSeconds: number;
@@ -227,8 +236,8 @@ function runEditor(table: TableShape, rounds: number): EditorFigures | null {
       console.log(`editor FAILED (exit ${run.status}): ${`${run.stdout}${run.stderr}`.trim().split('\n').slice(-8).join(' | ')}`);
       return null;
     }
-    const figures = JSON.parse(line.slice(line.indexOf('SCATTERWISE_BENCH ') + 'SCATTERWISE_BENCH '.length)) as EditorFigures;
-    console.log(`editor round ${round + 1}: provisional answer after ${figures.provisionalSeconds.toFixed(2)} s, full fit ${figures.fullSeconds.toFixed(1)} s, host event-loop delay p99 ${figures.eventLoopDelayP99Ms.toFixed(1)} ms`);
+    const figures = { ...(JSON.parse(line.slice(line.indexOf('SCATTERWISE_BENCH ') + 'SCATTERWISE_BENCH '.length)) as Omit<EditorFigures, 'table'>), table: EDITOR_FILE_KINDS[table.id] ?? table.id };
+    console.log(`editor ${table.id} round ${round + 1}: provisional answer after ${figures.provisionalSeconds.toFixed(2)} s, full fit ${figures.fullSeconds.toFixed(1)} s, host event-loop delay p99 ${figures.eventLoopDelayP99Ms.toFixed(1)} ms`);
     all.push(figures);
   }
   type Timed = 'provisionalSeconds' | 'fullSeconds' | 'eventLoopDelayP99Ms' | 'eventLoopDelayMaxMs';
@@ -273,13 +282,13 @@ function framesMarkdown(frames: FrameTimes[]): string {
   ].join('\n');
 }
 
-function editorMarkdown(e: EditorFigures): string {
+function editorMarkdown(all: EditorFigures[]): string {
   return [
-    `**Editor (VS Code ${'1.100'} server build in headless Chromium)**: the ${mb(e.bytes)} MB table; times are the median of ${e.runs ?? 1} run(s), each in a fresh VS Code, the event-loop delay the worst run's; the provisional time runs until the host posts the answer to the panel`,
+    `**Editor (VS Code ${'1.100'} server build in headless Chromium)**: times are the median of ${all[0]?.runs ?? 1} run(s) per file, each in a fresh VS Code, the event-loop delay the worst run's; the provisional time runs until the host posts the answer to the panel`,
     '',
-    '| provisional answer after s | rows in it | full fit s | host event-loop delay p99 ms | max ms |',
-    '|---:|---:|---:|---:|---:|',
-    `| ${e.provisionalSeconds.toFixed(2)} | ${e.provisionalRows.toLocaleString('en')} | ${e.fullSeconds.toFixed(1)} | ${e.eventLoopDelayP99Ms.toFixed(1)} | ${e.eventLoopDelayMaxMs.toFixed(1)} |`,
+    '| file | MB | provisional answer after s | rows in it | full fit s | host event-loop delay p99 ms | max ms |',
+    '|---|---:|---:|---:|---:|---:|---:|',
+    ...all.map((e) => `| ${e.table} | ${mb(e.bytes)} | ${e.provisionalSeconds.toFixed(2)} | ${e.provisionalRows.toLocaleString('en')} | ${e.fullSeconds.toFixed(1)} | ${e.eventLoopDelayP99Ms.toFixed(1)} | ${e.eventLoopDelayMaxMs.toFixed(1)} |`),
   ].join('\n');
 }
 
@@ -289,7 +298,7 @@ function evaluateTargets(
   layouts: Map<string, ParquetLayout>,
   kernels: KernelPair[],
   frames: FrameTimes[],
-  editor: EditorFigures | null,
+  editor: EditorFigures[],
   quick: boolean,
 ): Target[] {
   const targets: Target[] = [];
@@ -344,9 +353,9 @@ function evaluateTargets(
     targets.push({ what: `${table.title}: bounded memory (peak under 200 MB)`, holds: parquet.maxRssMB < 200, measured: `${parquet.maxRssMB.toFixed(0)} MB${held}` });
   }
   for (const f of frames) targets.push({ what: `panel scatter plot at ${f.points.toLocaleString('en')} points: frame time p95 under 33 ms while panning and zooming`, holds: f.p95 < 33, measured: `p95 ${f.p95.toFixed(1)} ms over ${f.frames} frames` });
-  if (editor) {
-    targets.push({ what: 'editor: provisional answer within 1 s of opening the 1 GB file', holds: editor.provisionalSeconds < 1, measured: `${editor.provisionalSeconds.toFixed(2)} s` });
-    targets.push({ what: "editor: host event-loop delay p99 under 50 ms during the full fit", holds: editor.eventLoopDelayP99Ms < 50, measured: `${editor.eventLoopDelayP99Ms.toFixed(1)} ms` });
+  for (const e of editor) {
+    targets.push({ what: `editor, ${e.table}: provisional answer within 1 s of opening the file`, holds: e.provisionalSeconds < 1, measured: `${e.provisionalSeconds.toFixed(2)} s` });
+    targets.push({ what: `editor, ${e.table}: host event-loop delay p99 under 50 ms during the full fit`, holds: e.eventLoopDelayP99Ms < 50, measured: `${e.eventLoopDelayP99Ms.toFixed(1)} ms` });
   }
   return targets;
 }

@@ -34,7 +34,7 @@ order turns from round to round. Figures are medians over the rounds; peak memor
 | parquet-1 | the same in one row group (the worst case for a reader's memory) |
 | kernel | the moments update against numpy's \`X.T @ X\` on the same rows (d = 200 and 1 000), steady (into moments that already hold rows, as the bulk of a pass and numpy's timed products run) and fresh (a new accumulator's memory touched for the first time), and the fit from moments at d = 1 000, K = 10 |
 | frames | frame times of the panel's scatter plot while panned and zoomed, in headless Chromium, at 50 000 and 1 000 000 points |
-| editor | the separability editor in VS Code's server build: time from opening the 1 GB file until the host posts the provisional answer to the panel (the panel's drawing of it is not timed), and the host's event-loop delay during the full fit |
+| editor | the separability editor in VS Code's server build, on the 1 GB table as CSV and as both Parquet copies: time from opening the file until the host posts the provisional answer to the panel (the panel's drawing of it is not timed), and the host's event-loop delay during the full fit |
 
 Tools on each table:
 
