@@ -353,7 +353,8 @@ export class FlatColumnCursor {
     const dataOffset = this.window.position;
     const size = header.compressed_page_size;
     if (header.type === 'DICTIONARY_PAGE') {
-      // Decoded already by an earlier pass over this row group: the same values (never written to).
+      // Decoded already by an earlier pass over this row group (or as far as it needed, still
+      // growing): the same values, each entry written once.
       const known = this.dictionaries?.get(dataOffset) ?? this.growingDictionary(header, dataOffset);
       if (known) {
         this.window.discard(size);
@@ -366,7 +367,7 @@ export class FlatColumnCursor {
         }
         return;
       }
-      this.dictionary = this.wholeDictionary(await this.window.take(size), header);
+      this.dictionary = decodeDictionary(await this.window.take(size), header, this.decoder);
       this.dictionaries?.set(dataOffset, this.dictionary);
       return;
     }
@@ -383,12 +384,6 @@ export class FlatColumnCursor {
     this.whole = this.decodeWhole(await this.window.take(size), header);
   }
 
-  private wholeDictionary(compressed: Uint8Array, header: PageHeader): DecodedArray {
-    const page = decompressPage(compressed, Number(header.uncompressed_page_size), this.codec, this.compressors);
-    const reader = { view: new DataView(page.buffer, page.byteOffset, page.byteLength), offset: 0 };
-    return convert(readPlain(reader, this.decoder.type, header.dictionary_page_header?.num_values ?? 0, this.element.type_length), this.decoder);
-  }
-
   /**
    * A large dictionary of plain numbers, decompressed into its array only as far as the indexes read
    * reach (GrowingDictionary). Null when it is read whole instead.
@@ -400,8 +395,7 @@ export class FlatColumnCursor {
     if (!(this.decoder.type in NUMBER_ARRAYS) || !plainNumbers(this.element)) return null;
     const Type = NUMBER_ARRAYS[this.decoder.type as StreamedType];
     if (header.uncompressed_page_size < count * Type.BYTES_PER_ELEMENT) throw new StreamDamaged(`a dictionary page of ${header.uncompressed_page_size} bytes for ${count} values`);
-    const decodeWhole = (compressed: Uint8Array): DecodedArray => this.wholeDictionary(compressed, header);
-    return new GrowingDictionary(this.source, Type, count, dataOffset, header, this.codec, this.tuning, decodeWhole);
+    return new GrowingDictionary(this.source, Type, count, dataOffset, header, this.decoder, this.tuning);
   }
 
   /** Decodes the rest of a growing dictionary: before a data page is read whole, which may take any entry. */
@@ -506,6 +500,13 @@ export type KeptDictionary = DecodedArray | GrowingDictionary;
 
 type NumberArrayType = (typeof NUMBER_ARRAYS)[StreamedType];
 
+/** A dictionary page decoded whole from its compressed bytes. */
+function decodeDictionary(compressed: Uint8Array, header: PageHeader, decoder: Decoder & { codec: CompressionCodec; compressors: Compressors }): DecodedArray {
+  const page = decompressPage(compressed, Number(header.uncompressed_page_size), decoder.codec, decoder.compressors);
+  const reader = { view: new DataView(page.buffer, page.byteOffset, page.byteLength), offset: 0 };
+  return convert(readPlain(reader, decoder.type, header.dictionary_page_header?.num_values ?? 0, decoder.element.type_length), decoder);
+}
+
 /**
  * A large dictionary of plain numbers, decompressed straight into its array (no compressed or
  * decompressed page copy beside it; in shared memory where there is one, so that the threads that
@@ -521,6 +522,8 @@ export class GrowingDictionary {
   /** Entries decoded, from the first. */
   filled = 0;
   private readonly target: Uint8Array;
+  /** Bytes per entry. */
+  private readonly width: number;
   private bytes: PageBytes | null = null;
   private growing: Promise<void> = Promise.resolve();
 
@@ -530,12 +533,11 @@ export class GrowingDictionary {
     count: number,
     private readonly dataOffset: number,
     private readonly header: PageHeader,
-    private readonly codec: CompressionCodec,
+    private readonly decoder: Decoder & { codec: CompressionCodec; compressors: Compressors },
     private readonly tuning: CursorTuning,
-    /** The page decoded whole from its compressed bytes (when the stream cannot go on: StreamFallback). */
-    private readonly decodeWhole: (compressed: Uint8Array) => DecodedArray,
   ) {
-    const length = count * Type.BYTES_PER_ELEMENT;
+    this.width = Type.BYTES_PER_ELEMENT;
+    const length = count * this.width;
     const memory = typeof SharedArrayBuffer === 'undefined' ? new ArrayBuffer(length) : new SharedArrayBuffer(length);
     this.values = new Type(memory as ArrayBuffer) as DecodedArray;
     this.target = new Uint8Array(memory);
@@ -555,14 +557,14 @@ export class GrowingDictionary {
   private async grow(entries: number): Promise<void> {
     const total = this.values.length;
     if (entries <= this.filled) return;
-    const width = this.target.length / Math.max(1, total);
+    const width = this.width;
     const piece = Math.max(1, Math.floor(DICTIONARY_PIECE / width));
     const want = Math.min(total, Math.max(entries, this.filled + piece));
     try {
       if (!this.bytes) {
         const size = this.header.compressed_page_size;
         const window = new SourceWindow(this.source, this.dataOffset, this.dataOffset + size, this.tuning.readBytes);
-        this.bytes = this.codec === 'SNAPPY' ? await SnappyPageBytes.open(window, size, this.header.uncompressed_page_size, this.tuning.snappyHistoryBytes) : new PlainPageBytes(window, size);
+        this.bytes = this.decoder.codec === 'SNAPPY' ? await SnappyPageBytes.open(window, size, this.header.uncompressed_page_size, this.tuning.snappyHistoryBytes) : new PlainPageBytes(window, size);
       }
       const bytes = this.bytes;
       while (this.filled < want) {
@@ -574,7 +576,8 @@ export class GrowingDictionary {
       }
     } catch (error) {
       if (!(error instanceof StreamFallback)) throw error;
-      const whole = this.decodeWhole(await readExactly(this.source, this.dataOffset, this.header.compressed_page_size));
+      // Decoded whole (a snappy copy reaching back beyond the history kept): plain numbers, the same array type.
+      const whole = decodeDictionary(await readExactly(this.source, this.dataOffset, this.header.compressed_page_size), this.header, this.decoder);
       (this.values as Float64Array).set(whole as Float64Array);
       this.filled = total;
     }

@@ -369,6 +369,10 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
     // The whole group through the same source: its dictionary goes on growing from the entries decoded.
     const all = await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], { batchRows: 4096 }, undefined, source);
     assert.deepEqual(all.values, expected);
+    // Snappy copies reaching back beyond the history kept (one byte here): the index stream and the
+    // growing dictionary both go on from the page decoded whole.
+    const fallback = await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], { batchRows: 4096, snappyHistoryBytes: 1 }, undefined, memorySource('first-look.parquet', bytes));
+    assert.deepEqual(fallback.values, expected);
     // A run from the middle of the group, on its own: its first indexes reach far into the dictionary.
     const middle = await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], {}, { start: 600_000, end: 600_100 }, memorySource('first-look.parquet', bytes));
     assert.deepEqual(middle.values, expected.slice(600_000, 600_100));
