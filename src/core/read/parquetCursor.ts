@@ -75,7 +75,7 @@ interface StreamedPage {
   indexes: HybridStream | null;
 }
 
-/** Bytes of a streamed dictionary page copied at a time. */
+/** Bytes of a growing dictionary decoded at a time (at least; GrowingDictionary). */
 const DICTIONARY_PIECE = 64 * 1024;
 
 /** Rows of a streamed page skipped at a time (bounds the levels and page bytes held for a skip). */
@@ -269,7 +269,7 @@ export class FlatColumnCursor {
   /** Decodes a streamed page whole from the file, positioned at the row the stream had reached. */
   private async fallBack(page: StreamedPage): Promise<WholePage> {
     const compressed = await readExactly(this.source, page.dataOffset, page.header.compressed_page_size);
-    await this.completeDictionary();
+    await this.completeDictionaryFor(page.header);
     const whole = this.decodeWhole(compressed, page.header);
     this.streamed = null;
     this.keepSnappy(page.bytes);
@@ -380,7 +380,7 @@ export class FlatColumnCursor {
       await this.openStreamed(header, dataOffset);
       return;
     }
-    await this.completeDictionary();
+    await this.completeDictionaryFor(header);
     this.whole = this.decodeWhole(await this.window.take(size), header);
   }
 
@@ -398,10 +398,15 @@ export class FlatColumnCursor {
     return new GrowingDictionary(this.source, Type, count, dataOffset, header, this.decoder, this.tuning);
   }
 
-  /** Decodes the rest of a growing dictionary: before a data page is read whole, which may take any entry. */
-  private async completeDictionary(): Promise<void> {
+  /**
+   * Decodes the rest of a growing dictionary before a data page of dictionary indexes is read whole
+   * (any entry may be taken at once). A PLAIN page (a writer's fallback once the dictionary is full)
+   * needs none of it.
+   */
+  private async completeDictionaryFor(header: PageHeader): Promise<void> {
     const growing = this.growing;
-    if (!growing) return;
+    const encoding = header.data_page_header?.encoding ?? header.data_page_header_v2?.encoding;
+    if (!growing || (encoding !== 'PLAIN_DICTIONARY' && encoding !== 'RLE_DICTIONARY')) return;
     await growing.fillTo(growing.values.length);
     this.growing = null;
   }
@@ -447,7 +452,7 @@ export class FlatColumnCursor {
     } catch (error) {
       if (!(error instanceof StreamFallback)) throw error;
       this.moveWindow(dataOffset + size);
-      await this.completeDictionary();
+      await this.completeDictionaryFor(header);
       this.whole = this.decodeWhole(await readExactly(this.source, dataOffset, size), header);
     }
   }
