@@ -114,8 +114,13 @@ class ClassAccumulator {
     const fB = nA / n;
     let deltaSq = 0;
     for (let i = 0; i < d; i++) deltaSq += delta[i] * delta[i];
+    // S = S_A + S_B + (nA nb / n) δδᵀ: the rank-1 term rides along as one more block row; the
+    // same pass over S gives S_A δ (S before the update).
+    const weight = Math.sqrt((nA * nb) / n);
+    const correction = nb * size;
+    for (let i = 0; i < d; i++) y[correction + i] = weight * delta[i];
     this.kernel.vector.set(delta);
-    this.kernel.multiplyUpper();
+    this.kernel.update(nb + 1, true);
     const product = this.kernel.product; // S_A δ
     let runningDelta = 0; // δᵀ S_A δ
     let runningCubicDelta = 0;
@@ -136,11 +141,6 @@ class ClassAccumulator {
       this.mean[i] += (nb / n) * delta[i];
     }
     this.quartic = quarticA + quarticB;
-    // S = S_A + S_B + (nA nb / n) δδᵀ: the rank-1 term rides along as one more block row.
-    const weight = Math.sqrt((nA * nb) / n);
-    const correction = nb * size;
-    for (let i = 0; i < d; i++) y[correction + i] = weight * delta[i];
-    this.kernel.update(nb + 1);
     this.scatterTrace += blockTrace + ((nA * nb) / n) * deltaSq;
     this.count = n;
     this.buffered = 0;

@@ -54,7 +54,7 @@ describe('cross-product kernel (S += YᵀY)', () => {
 
 describe('row-major scatter kernel (S += XᵀX, S·v from the upper triangle)', () => {
   for (const plain of [false, true]) {
-    it(`${plain ? 'plain JavaScript' : 'WebAssembly SIMD'}: equals the triple loop on the upper triangle, keeps the padding zero, multiplies by the symmetric S`, () => {
+    it(`${plain ? 'plain JavaScript' : 'WebAssembly SIMD'}: equals the triple loop on the upper triangle, keeps the padding zero, multiplies by the symmetric S as it was`, () => {
       const draw = uniform(12);
       for (const d of [1, 2, 3, 4, 5, 7, 8, 9, 13, 16, 23]) {
         for (const rows of [1, 2, 3, 8, 64, 65]) {
@@ -62,8 +62,20 @@ describe('row-major scatter kernel (S += XᵀX, S·v from the upper triangle)', 
           const size = kernel.size;
           assert.ok(size >= d && size % 4 === 0, `size ${size} for d=${d}`);
           const expected = new Float64Array(d * d);
+          let scale = 1;
           for (let round = 0; round < 3; round++) {
             for (let t = 0; t < rows; t++) for (let i = 0; i < d; i++) kernel.block[t * size + i] = draw() * 2 - 1;
+            // From the second round on, the update also gives product = S v with S the symmetric
+            // matrix whose upper triangle is `expected` before the update; the kernel's lower
+            // entries (left undefined) must not be read: fill them with garbage.
+            const multiply = round > 0;
+            const v = Array.from({ length: d }, () => draw() * 2 - 1);
+            const before = expected.slice();
+            if (multiply) {
+              for (let i = 0; i < d; i++) for (let j = 0; j < i; j++) kernel.scatter[i * size + j] = round === 1 ? 1e300 : NaN;
+              kernel.vector.set(v);
+              kernel.product.fill(7); // overwritten, not added to
+            }
             for (let i = 0; i < d; i++) {
               for (let j = i; j < d; j++) {
                 let sum = 0;
@@ -71,30 +83,23 @@ describe('row-major scatter kernel (S += XᵀX, S·v from the upper triangle)', 
                 expected[i * d + j]! += sum;
               }
             }
-            kernel.update(rows);
-          }
-          let scale = 0;
-          for (const v of expected) scale = Math.max(scale, Math.abs(v));
-          // Sums of up to 3·65 products, in a different order: a few ulps of the largest entry.
-          const tolerance = 4 * 3 * rows * Number.EPSILON * Math.max(1, scale);
-          for (let i = 0; i < size; i++) {
-            for (let j = 0; j < size; j++) {
-              const got = kernel.scatter[i * size + j]!;
-              if (i >= d || j >= d) assert.equal(got, 0, `d=${d} rows=${rows}: padding entry (${i}, ${j}) written`);
-              else if (j >= i) assert.ok(Math.abs(got - expected[i * d + j]!) <= tolerance, `d=${d} rows=${rows} (${i}, ${j}): ${got} vs ${expected[i * d + j]}`);
+            kernel.update(rows, multiply);
+            for (const value of expected) scale = Math.max(scale, Math.abs(value));
+            // Sums of up to 3·65 products, in a different order: a few ulps of the largest entry.
+            const tolerance = 4 * 3 * rows * Number.EPSILON * scale;
+            for (let i = 0; i < size; i++) {
+              for (let j = 0; j < size; j++) {
+                const got = kernel.scatter[i * size + j]!;
+                if (i >= d || j >= d) assert.equal(got, 0, `d=${d} rows=${rows}: padding entry (${i}, ${j}) written`);
+                else if (j >= i) assert.ok(Math.abs(got - expected[i * d + j]!) <= tolerance, `d=${d} rows=${rows} (${i}, ${j}): ${got} vs ${expected[i * d + j]}`);
+              }
             }
-          }
-          // product = S v with S the symmetric matrix whose upper triangle is `expected`; lower
-          // entries of the kernel's S (left undefined) must not be read: fill them with garbage.
-          for (let i = 0; i < d; i++) for (let j = 0; j < i; j++) kernel.scatter[i * size + j] = 1e300;
-          const v = Array.from({ length: d }, () => draw() * 2 - 1);
-          kernel.vector.set(v);
-          kernel.product.fill(7); // overwritten, not added to
-          kernel.multiplyUpper();
-          for (let i = 0; i < d; i++) {
-            let sum = 0;
-            for (let j = 0; j < d; j++) sum += expected[Math.min(i, j) * d + Math.max(i, j)]! * v[j]!;
-            assert.ok(Math.abs(kernel.product[i]! - sum) <= tolerance * 2 * d, `d=${d} rows=${rows}: (S v)[${i}] ${kernel.product[i]} vs ${sum}`);
+            if (!multiply) continue;
+            for (let i = 0; i < size; i++) {
+              let sum = 0;
+              for (let j = 0; j < d; j++) sum += i < d ? before[Math.min(i, j) * d + Math.max(i, j)]! * v[j]! : 0;
+              assert.ok(Math.abs(kernel.product[i]! - sum) <= tolerance * 2 * d, `d=${d} rows=${rows} round ${round}: (S v)[${i}] ${kernel.product[i]} vs ${sum}`);
+            }
           }
         }
       }
