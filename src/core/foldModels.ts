@@ -21,7 +21,7 @@ import type { Classifier } from './classify';
 import { createClassifier } from './classify';
 import { DataError } from './errors';
 import { scoringModelOf, solveLda, solvePooled, type LdaOptions, type LdaSolution, type PooledMoments, type ScoringModel } from './lda';
-import { createCrossProductKernel, type CrossProductKernel } from './crossProductKernel';
+import { createScatterKernel, type ScatterKernel } from './crossProductKernel';
 import { mirrorUpper } from './linalg';
 import type { Moments } from './moments';
 
@@ -29,13 +29,13 @@ const BLOCK_ROWS = 64;
 
 interface FoldState {
   /** Owns `scatter` and `block` and updates one from the other (crossProductKernel.ts). */
-  kernel: CrossProductKernel;
-  /** d × d upper triangle: pooled within-class scatter of the fold's rows. */
+  kernel: ScatterKernel;
+  /** size × size (the kernel's), upper triangle: pooled within-class scatter of the fold's rows. */
   scatter: Float64Array;
   /** Per class index: count and mean relative to the class's shift. */
   counts: number[];
   means: Float64Array[];
-  /** d × (2·BLOCK_ROWS) transposed buffer of raw rows, then centred rows and correction rows. */
+  /** (2·BLOCK_ROWS) × size, row-major: raw rows, then centred rows and correction rows. */
   block: Float64Array;
   classes: Int32Array;
   buffered: number;
@@ -63,8 +63,10 @@ export class FoldMomentsAccumulator implements FoldParts {
   private readonly byLabel = new Map<string, number>();
   private readonly shifts: Float64Array[] = [];
   private slotOf = new Int32Array(8);
-  private readonly stride = 2 * BLOCK_ROWS + 2; // the rows, a correction row per class, a spare to keep it even (crossProductKernel.ts)
+  /** The kernels' row length (d rounded up to the kernel's tile; the padding columns stay 0). */
+  private readonly size: number;
   private blockSums = new Float64Array(0);
+  private readonly columnTotals: Float64Array;
 
   constructor(
     readonly features: string[],
@@ -72,10 +74,13 @@ export class FoldMomentsAccumulator implements FoldParts {
   ) {
     if (!Number.isInteger(kFolds) || kFolds < 2) throw new DataError('bad-option', `k-fold cross-validation needs at least 2 folds, not ${kFolds}.`);
     this.d = features.length;
+    this.columnTotals = new Float64Array(this.d);
+    // A block holds its rows and a correction row per class present in it.
     this.folds = Array.from({ length: kFolds }, () => {
-      const kernel = createCrossProductKernel(this.d, this.stride);
+      const kernel = createScatterKernel(this.d, 2 * BLOCK_ROWS);
       return { kernel, scatter: kernel.scatter, block: kernel.block, counts: [], means: [], classes: new Int32Array(BLOCK_ROWS), buffered: 0 };
     });
+    this.size = this.folds[0]!.kernel.size;
   }
 
   /** Rows as for MomentsAccumulator.add, with each row's fold (0..kFolds−1). */
@@ -95,7 +100,8 @@ export class FoldMomentsAccumulator implements FoldParts {
       const fold = this.folds[f];
       const t = fold.buffered;
       const base = r * d;
-      for (let i = 0; i < d; i++) fold.block[i * this.stride + t] = values[base + i];
+      const at = t * this.size;
+      for (let i = 0; i < d; i++) fold.block[at + i] = values[base + i];
       fold.classes[t] = c;
       fold.buffered = t + 1;
       if (t + 1 === BLOCK_ROWS) this.flush(fold);
@@ -121,7 +127,7 @@ export class FoldMomentsAccumulator implements FoldParts {
     const nb = fold.buffered;
     if (nb === 0) return;
     const d = this.d;
-    const stride = this.stride;
+    const size = this.size;
     const y = fold.block;
     const K = this.labels.length;
     // Slot of each class present in the block, and the block sums per slot (slots × d).
@@ -142,25 +148,30 @@ export class FoldMomentsAccumulator implements FoldParts {
     if (this.blockSums.length < slots.length * d) this.blockSums = new Float64Array(Math.max(slots.length, 8) * d);
     const sums = this.blockSums;
     sums.fill(0, 0, slots.length * d);
-    for (let i = 0; i < d; i++) {
-      const col = i * stride;
-      let total = 0;
-      for (let t = 0; t < nb; t++) {
-        const c = fold.classes[t];
-        const v = y[col + t] - this.shifts[c][i];
-        y[col + t] = v;
-        sums[slotOf[c] * d + i] += v;
-        total += v;
+    const totals = this.columnTotals.fill(0);
+    for (let t = 0; t < nb; t++) {
+      const row = t * size;
+      const c = fold.classes[t];
+      const shift = this.shifts[c];
+      const slot = slotOf[c] * d;
+      for (let i = 0; i < d; i++) {
+        const v = y[row + i] - shift[i];
+        y[row + i] = v;
+        sums[slot + i] += v;
+        totals[i] += v;
       }
-      if (!Number.isFinite(total)) {
+    }
+    for (let i = 0; i < d; i++) {
+      if (!Number.isFinite(totals[i])) {
         throw new DataError('non-finite-value', `A value in column "${this.features[i]}" is not a finite number.`, { column: this.features[i] });
       }
     }
     for (let s = 0; s < slots.length; s++) for (let i = 0; i < d; i++) sums[s * d + i] /= slotCounts[s];
     // Centre each row on its class's block mean.
-    for (let i = 0; i < d; i++) {
-      const col = i * stride;
-      for (let t = 0; t < nb; t++) y[col + t] -= sums[slotOf[fold.classes[t]] * d + i];
+    for (let t = 0; t < nb; t++) {
+      const row = t * size;
+      const slot = slotOf[fold.classes[t]] * d;
+      for (let i = 0; i < d; i++) y[row + i] -= sums[slot + i];
     }
     // Merge each class's block part into the fold's running class mean: the scatter gains
     // (n_A n_B / n) δδᵀ, appended as a row √(n_A n_B / n) δ.
@@ -172,9 +183,10 @@ export class FoldMomentsAccumulator implements FoldParts {
       const n = nA + nB;
       const mean = fold.means[c];
       const weight = Math.sqrt((nA * nB) / n);
+      const correction = (nb + extra) * size;
       for (let i = 0; i < d; i++) {
         const delta = sums[s * d + i] - mean[i];
-        if (nA > 0) y[i * stride + nb + extra] = weight * delta;
+        if (nA > 0) y[correction + i] = weight * delta;
         mean[i] += (nB / n) * delta;
       }
       if (nA > 0) extra++;
@@ -187,9 +199,11 @@ export class FoldMomentsAccumulator implements FoldParts {
   /** The fold parts: per fold the pooled within-class scatter (d × d full) and per label count and mean. */
   parts(): FoldPart[] {
     const d = this.d;
+    const size = this.size;
     return this.folds.map((fold) => {
       this.flush(fold);
-      const withinScatter = Float64Array.from(fold.scatter);
+      const withinScatter = new Float64Array(d * d);
+      for (let i = 0; i < d; i++) withinScatter.set(fold.scatter.subarray(i * size + i, i * size + d), i * d + i);
       mirrorUpper(withinScatter, d);
       const counts = new Map<string, number>();
       const means = new Map<string, Float64Array>();

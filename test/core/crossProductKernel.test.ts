@@ -1,58 +1,17 @@
 /**
- * The WebAssembly SIMD cross-product kernel against a plain triple loop written here: S += Yᵀ Y
- * over the block's first `rows` columns, upper triangle only, for sizes that exercise every tile
- * edge (d below, at and above multiples of 2 and 4; odd and even row counts up to the stride).
+ * The scatter kernel (S += XᵀX over a row-major block, S·v from the upper triangle, the flush's
+ * passes), WebAssembly SIMD and plain JavaScript, against plain loops written here, for sizes that
+ * exercise every tile edge (d below, at and above multiples of 4; row counts up to the capacity).
  */
 import { strict as assert } from 'node:assert';
-import { createCrossProductKernel, createScatterKernel, simdAvailable } from '../../src/core/crossProductKernel';
+import { createScatterKernel, simdAvailable } from '../../src/core/crossProductKernel';
 import { uniform } from './generatedTables';
 
-describe('cross-product kernel (S += YᵀY)', () => {
+describe('row-major scatter kernel (S += XᵀX, S·v from the upper triangle)', () => {
   it('runs as WebAssembly SIMD on this Node', () => {
     assert.ok(simdAvailable(), 'Node 20 has WebAssembly SIMD');
   });
 
-  for (const plain of [false, true]) {
-    it(`${plain ? 'plain JavaScript' : 'WebAssembly SIMD'}: equals the triple loop, leaves the lower triangle alone`, () => {
-      const draw = uniform(11);
-      const stride = 68;
-      for (const d of [1, 2, 3, 4, 5, 6, 7, 8, 9, 11, 16, 23]) {
-        for (const rows of [1, 2, 3, 8, 63, 64, 65, 67]) {
-          const kernel = createCrossProductKernel(d, stride, plain);
-          const expected = new Float64Array(d * d);
-          for (let round = 0; round < 3; round++) {
-            for (let k = 0; k < d * stride; k++) kernel.block[k] = draw() * 2 - 1;
-            for (let i = 0; i < d; i++) {
-              for (let j = i; j < d; j++) {
-                let sum = 0;
-                for (let t = 0; t < rows; t++) sum += kernel.block[i * stride + t]! * kernel.block[j * stride + t]!;
-                expected[i * d + j]! += sum;
-              }
-            }
-            kernel.update(rows);
-          }
-          let scale = 0;
-          for (const v of expected) scale = Math.max(scale, Math.abs(v));
-          // Sums of up to 3·65 products, in a different order: a few ulps of the largest entry.
-          const tolerance = 4 * 3 * rows * Number.EPSILON * Math.max(1, scale);
-          for (let i = 0; i < d; i++) {
-            for (let j = 0; j < d; j++) {
-              const got = kernel.scatter[i * d + j]!;
-              if (j >= i) assert.ok(Math.abs(got - expected[i * d + j]!) <= tolerance, `d=${d} rows=${rows} (${i}, ${j}): ${got} vs ${expected[i * d + j]}`);
-              else assert.equal(got, 0, `d=${d} rows=${rows}: lower entry (${i}, ${j}) written`);
-            }
-          }
-        }
-      }
-    });
-  }
-
-  it('refuses an odd stride (an odd block is padded with a zero row)', () => {
-    assert.throws(() => createCrossProductKernel(4, 67), RangeError);
-  });
-});
-
-describe('row-major scatter kernel (S += XᵀX, S·v from the upper triangle)', () => {
   for (const plain of [false, true]) {
     it(`${plain ? 'plain JavaScript' : 'WebAssembly SIMD'}: equals the triple loop on the upper triangle, keeps the padding zero, multiplies by the symmetric S as it was`, () => {
       const draw = uniform(12);
