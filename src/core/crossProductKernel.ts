@@ -21,6 +21,7 @@ import {
   f64x2Splat, geS, get, I32, i32, lane, loop, moduleOf, mul, section, set, unsignedLeb, utf8, V128, v128Load,
   v128Store, v128Zero, vector, compileModule, webAssembly, type WasmModule
 } from './wasmAssembly';
+import { mirrorUpper } from './linalg';
 
 const when = [0x04, 0x40];
 
@@ -504,6 +505,14 @@ export function createScatterKernel(d: number, capacity: number, plain = false):
   if (shared) return new SimdScatterKernel(shared, d, size, capacity, true);
   const module = rowModule(size, false);
   return module ? new SimdScatterKernel(module, d, size, capacity, false) : new PlainScatterKernel(d, size, capacity);
+}
+
+/** The full d × d symmetric matrix, a new one, from the upper triangle of a kernel's size × size scatter. */
+export function symmetricFromUpper(upper: Float64Array, size: number, d: number): Float64Array {
+  const out = new Float64Array(d * d);
+  for (let i = 0; i < d; i++) out.set(upper.subarray(i * size + i, i * size + d), i * d + i);
+  mirrorUpper(out, d);
+  return out;
 }
 
 /** Whether the WebAssembly SIMD kernel is in use here. */

@@ -21,8 +21,7 @@ import type { Classifier } from './classify';
 import { createClassifier } from './classify';
 import { DataError } from './errors';
 import { scoringModelOf, solveLda, solvePooled, type LdaOptions, type LdaSolution, type PooledMoments, type ScoringModel } from './lda';
-import { createScatterKernel, type ScatterKernel } from './crossProductKernel';
-import { mirrorUpper } from './linalg';
+import { createScatterKernel, symmetricFromUpper, type ScatterKernel } from './crossProductKernel';
 import type { Moments } from './moments';
 
 const BLOCK_ROWS = 64;
@@ -202,9 +201,7 @@ export class FoldMomentsAccumulator implements FoldParts {
     const size = this.size;
     return this.folds.map((fold) => {
       this.flush(fold);
-      const withinScatter = new Float64Array(d * d);
-      for (let i = 0; i < d; i++) withinScatter.set(fold.scatter.subarray(i * size + i, i * size + d), i * d + i);
-      mirrorUpper(withinScatter, d);
+      const withinScatter = symmetricFromUpper(fold.scatter, size, d);
       const counts = new Map<string, number>();
       const means = new Map<string, Float64Array>();
       this.labels.forEach((label, c) => {

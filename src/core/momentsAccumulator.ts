@@ -8,7 +8,7 @@
  * Chan et al.'s pairwise formula (momentShift.ts).
  */
 import { DataError } from './errors';
-import { createScatterKernel, type ScatterKernel } from './crossProductKernel';
+import { createScatterKernel, symmetricFromUpper, type ScatterKernel } from './crossProductKernel';
 import { mirrorUpper } from './linalg';
 import { shiftQuartic } from './momentShift';
 import type { ClassMoments, Moments } from './moments';
@@ -163,14 +163,6 @@ class ClassAccumulator {
       quartic: this.quartic,
     };
   }
-}
-
-/** The full d × d symmetric matrix, a new one, from the upper triangle of a size × size one. */
-function symmetricFromUpper(upper: Float64Array, size: number, d: number): Float64Array {
-  const out = new Float64Array(d * d);
-  for (let i = 0; i < d; i++) out.set(upper.subarray(i * size + i, i * size + d), i * d + i);
-  mirrorUpper(out, d);
-  return out;
 }
 
 /**
