@@ -27,15 +27,15 @@ import type { Moments } from './moments';
 const BLOCK_ROWS = 64;
 
 interface FoldState {
-  /** Owns `scatter` and `block` and updates one from the other (crossProductKernel.ts). */
+  /**
+   * Its `scatter` (size × size, upper triangle) is the pooled within-class scatter of the fold's
+   * rows; its `block` ((2·BLOCK_ROWS) × size, row-major) the raw rows, then centred rows and
+   * correction rows (crossProductKernel.ts).
+   */
   kernel: ScatterKernel;
-  /** size × size (the kernel's), upper triangle: pooled within-class scatter of the fold's rows. */
-  scatter: Float64Array;
   /** Per class index: count and mean relative to the class's shift. */
   counts: number[];
   means: Float64Array[];
-  /** (2·BLOCK_ROWS) × size, row-major: raw rows, then centred rows and correction rows. */
-  block: Float64Array;
   classes: Int32Array;
   buffered: number;
 }
@@ -77,7 +77,7 @@ export class FoldMomentsAccumulator implements FoldParts {
     // A block holds its rows and a correction row per class present in it.
     this.folds = Array.from({ length: kFolds }, () => {
       const kernel = createScatterKernel(this.d, 2 * BLOCK_ROWS);
-      return { kernel, scatter: kernel.scatter, block: kernel.block, counts: [], means: [], classes: new Int32Array(BLOCK_ROWS), buffered: 0 };
+      return { kernel, counts: [], means: [], classes: new Int32Array(BLOCK_ROWS), buffered: 0 };
     });
     this.size = this.folds[0]!.kernel.size;
   }
@@ -100,7 +100,7 @@ export class FoldMomentsAccumulator implements FoldParts {
       const t = fold.buffered;
       const base = r * d;
       const at = t * this.size;
-      for (let i = 0; i < d; i++) fold.block[at + i] = values[base + i];
+      for (let i = 0; i < d; i++) fold.kernel.block[at + i] = values[base + i];
       fold.classes[t] = c;
       fold.buffered = t + 1;
       if (t + 1 === BLOCK_ROWS) this.flush(fold);
@@ -127,7 +127,7 @@ export class FoldMomentsAccumulator implements FoldParts {
     if (nb === 0) return;
     const d = this.d;
     const size = this.size;
-    const y = fold.block;
+    const y = fold.kernel.block;
     const K = this.labels.length;
     // Slot of each class present in the block, and the block sums per slot (slots × d).
     const slots: number[] = [];
@@ -201,7 +201,7 @@ export class FoldMomentsAccumulator implements FoldParts {
     const size = this.size;
     return this.folds.map((fold) => {
       this.flush(fold);
-      const withinScatter = symmetricFromUpper(fold.scatter, size, d);
+      const withinScatter = symmetricFromUpper(fold.kernel.scatter, size, d);
       const counts = new Map<string, number>();
       const means = new Map<string, Float64Array>();
       this.labels.forEach((label, c) => {
