@@ -56,17 +56,19 @@ Tools on each table:
 Python and R have no Parquet reader installed here, so the Parquet tables are read by scatterwise
 only; their target is scatterwise's own CSV throughput on the same table.
 
-What the one-row-group copy costs (measured on 2026-12-03, on the machine of the results below):
-in one row group DuckDB dictionary-encodes every feature column (the table's heading gives the
-dictionary pages' size), as 6-digit values repeat: some 840 000 doubles per column. A reader holds
-a row group's dictionaries while it reads the group, since any index may point anywhere in its
-dictionary, so they come on top of the fit's own memory (the default-groups copy's peak). And every
-value read is a load from a random place in them, which the caches do not hold: 20 ns per
-value in pass 1 and 28 ns in pass 2 with the passes instrumented, 4.4 s of CPU over the two passes'
-91 million values each, where a plain page's values are copied in order. Reading the dictionaries
-(and first touching as much fresh memory) takes ~0.6 s, once: as the first pass goes in one thread,
-before it when two threads share them (a first look reads only their first entries). Visiting the lookups in page order (a counting sort per batch) measured no faster in
-isolation: the cost is the cache miss, not the address translation.
+What the one-row-group copy costs, and how it is read (measured on 2026-12-03, on the machine of
+the results below): in one row group DuckDB dictionary-encodes every feature column (the table's
+heading gives the dictionary pages' size), as 6-digit values repeat: some 840 000 doubles per
+column. Any index may point anywhere in its dictionary, so a reader that takes the group row by row
+holds all its dictionaries (they came on top of the fit's own memory: 324 MB), and every value is
+a load from a random place in 130 MB that the caches do not hold (20 ns per value in pass 1 and 28
+ns in pass 2, instrumented: 4.4 s of CPU over the two passes' 91 million values each; the fit took
+7.6 s against the CSV's 5.4 s). Scatterwise spills such a group instead (src/core/read/parquetSpill.ts):
+each thread decodes its run of rows one column at a time, with that column's dictionary alone in
+memory (6.7 MB, lookups ~12 ns), into a scratch file of doubles in the system's temporary directory
+(8 bytes per value: 731 MB for this table, removed when the fit ends), and every pass reads its
+rows from there in order. The scratch file is the price: disk space for the decoded columns while
+the fit runs. Without scratch space (a browser), the group is read row by row as before.
 
 ## Results
 

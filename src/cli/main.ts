@@ -11,6 +11,7 @@ import { EXIT_BUG, EXIT_INTERRUPTED, EXIT_OK, EXIT_USAGE } from './command';
 import { COMMANDS } from './commands/index';
 import { commandHelp, programHelp } from './help';
 import { keepYoungGenerationSmall } from './youngGeneration';
+import { newScratchFolder, removeScratchFolder, useScratchFolder } from '../node/scratchFiles';
 
 function findCommand(name: string): Command {
   const command = COMMANDS.find((c) => c.name === name);
@@ -84,6 +85,11 @@ export async function runCli(argv: readonly string[], io: CommandIO): Promise<nu
 
 function main(): void {
   keepYoungGenerationSmall();
+  // Spills of a Parquet file's huge row group (src/core/read/parquetSpill.ts), removed when the
+  // process ends (a signal cancels the analysis first: the process then exits as usual).
+  const scratchFolder = newScratchFolder();
+  useScratchFolder(scratchFolder);
+  process.once('exit', () => removeScratchFolder(scratchFolder));
   const abort = new AbortController();
   const onSignal = (): void => abort.abort();
   process.once('SIGINT', onSignal);

@@ -7,6 +7,7 @@
  * ~0.2 s of CPU, most of the time to the editor's first look when the machine is busy.
  */
 import { Worker } from 'node:worker_threads';
+import { newScratchFolder, removeScratchFolder } from '../node/scratchFiles';
 import type { ColumnChoice, PanelReport } from '../shared/messages';
 import type { FitFailure, FitRequest, FromWorker, WorkerTiming } from './workerProtocol';
 
@@ -70,6 +71,7 @@ export class FitWorkers {
       spare.ref();
     }
     this.live.add(worker);
+    const scratchFolder = request.scratchFolder ?? newScratchFolder();
     let settled = false;
     let cancelled = false;
     const settle = (): boolean => {
@@ -108,6 +110,8 @@ export class FitWorkers {
     const ended = new Promise<FitJobEnd>((resolve) => {
       worker.on('exit', (code) => {
         this.live.delete(worker);
+        // Its spills (a Parquet file's huge row group: src/core/read/parquetSpill.ts) go with it.
+        removeScratchFolder(scratchFolder);
         // The next fit gets a started thread; made when this one is done, not beside its work.
         this.prepare();
         if (settle()) {
@@ -116,7 +120,7 @@ export class FitWorkers {
         resolve(cancelled ? 'cancelled' : 'finished');
       });
     });
-    worker.postMessage(request);
+    worker.postMessage({ ...request, scratchFolder } satisfies FitRequest);
     return {
       ended,
       cancel: () => {

@@ -18,6 +18,7 @@ import { inspectTable } from '../core/read/index';
 import type { TableInspection } from '../core/read/types';
 import { memorySource, type ByteSource, type Progress } from '../core/source';
 import { openFileSource } from '../node/fileSource';
+import { useScratchFolder } from '../node/scratchFiles';
 import { createParallelScanner } from '../node/parallelScan';
 import type { ColumnChoice } from '../shared/messages';
 import { packReport, sampleBuffers } from '../shared/packedSample';
@@ -213,5 +214,15 @@ async function columnsIfReadable(
 }
 
 // The request is the first message: a thread may be started before it is needed (fitWorkers.ts).
-if (workerData === FULL_ANALYSIS_ROLE) port.once('message', (job: FullAnalysisJob) => void runFullAnalysis(job));
-else port.once('message', (request: FitRequest) => void run(request));
+// Both threads spill into the fit's scratch folder (the host removes it).
+if (workerData === FULL_ANALYSIS_ROLE) {
+  port.once('message', (job: FullAnalysisJob) => {
+    useScratchFolder(job.request.scratchFolder ?? null);
+    void runFullAnalysis(job);
+  });
+} else {
+  port.once('message', (request: FitRequest) => {
+    useScratchFolder(request.scratchFolder ?? null);
+    void run(request);
+  });
+}

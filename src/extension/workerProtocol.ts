@@ -22,6 +22,8 @@ export interface FitRequest {
   provisionalBytes: number;
   /** Threads for the row passes of large text files; default one per core but one (see worker.ts). */
   scanThreads?: number;
+  /** The fit's scratch folder (src/node/scratchFiles.ts): chosen by the host, which removes it when the fit's thread has ended. */
+  scratchFolder?: string;
 }
 
 /** A DataError (or an unexpected failure) in a form that survives structured cloning. */

@@ -9,6 +9,7 @@
  * them, and so does `release` once the rows are read (a later pass starts new ones).
  *
  * Scanning threads: the machine's available parallelism (os.availableParallelism), at most 8.
+ * They spill into the calling thread's scratch folder (scratchFiles.ts), when it has one.
  */
 import { statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
@@ -22,6 +23,7 @@ import type { RangeScanner } from '../core/parallel/rangeScanner';
 import type { ByteSource } from '../core/source';
 import { openFileSource } from './fileSource';
 import type { ErrorData, FromScanWorker, ScanWorkerData, ToScanWorker } from './parallelScanProtocol';
+import { scratchFolderInUse } from './scratchFiles';
 
 export interface ParallelScanOptions {
   /** Threads scanning at once, the calling one included. Default: available parallelism, at most 8. */
@@ -76,7 +78,7 @@ export function createParallelScanner(path: string, name: string, options: Paral
 
   const ensurePool = (): Worker[] => {
     while (pool.length < workers - 1) {
-      const data: ScanWorkerData = { path, name };
+      const data: ScanWorkerData = { path, name, scratch: scratchFolderInUse() };
       const worker = new Worker(script, { workerData: data, resourceLimits: WORKER_LIMITS });
       if (options.onWorkerOnline) worker.once('online', options.onWorkerOnline);
       pool.push(worker);

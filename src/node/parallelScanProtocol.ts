@@ -1,10 +1,13 @@
 /** Messages between parallelScan.ts and its worker threads (parallelScanWorker.ts). */
 import type { PassJob, RangeTask } from '../core/parallel/rangeScanner';
+import type { SpillLimits } from '../core/read/scratch';
 
 /** What the worker is started with: the file to open read-only, and the name messages give it. */
 export interface ScanWorkerData {
   path: string;
   name: string;
+  /** The analysis's scratch folder (scratchFiles.ts) and when to spill, shared by its threads; null: none. */
+  scratch: { folder: string; limits: SpillLimits } | null;
 }
 
 export type ToScanWorker = { type: 'job'; job: PassJob } | { type: 'range'; index: number; task: RangeTask } | { type: 'finish' };

@@ -9,6 +9,7 @@ import { openPassJob, type PassJobRunner } from '../core/parallel/passJobs';
 import type { ByteSource, Progress } from '../core/source';
 import { openFileSource } from './fileSource';
 import type { ErrorData, FromScanWorker, ScanWorkerData, ToScanWorker } from './parallelScanProtocol';
+import { useScratchFolder } from './scratchFiles';
 
 const PROGRESS_INTERVAL_MS = 100;
 
@@ -27,7 +28,8 @@ function errorData(error: unknown): ErrorData {
   return { name: e.name, message: e.message, ...(e.stack !== undefined ? { stack: e.stack } : {}) };
 }
 
-const { path, name } = workerData as ScanWorkerData;
+const { path, name, scratch } = workerData as ScanWorkerData;
+if (scratch) useScratchFolder(scratch.folder, scratch.limits);
 const opened = openFileSource(path, { blocking: true });
 let runner: PassJobRunner | null = null;
 // Messages are handled one after the other: a range is scanned to its end before the next.

@@ -6,7 +6,7 @@
  */
 import { strict as assert } from 'node:assert';
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { createHash } from 'node:crypto';
@@ -15,6 +15,7 @@ import { DataError } from '../../src/core/errors';
 import type { FitOptions, FitReport } from '../../src/core/types';
 import { openFileSource } from '../../src/node/fileSource';
 import { createParallelScanner } from '../../src/node/parallelScan';
+import { removeScratchFolder, useScratchFolder } from '../../src/node/scratchFiles';
 import type { FirstWorkerResult } from '../../src/core/parallel/rangeScanner';
 import { pumpTable, toCsv, writeTemporary } from './generatedTables';
 import { assertSameReport } from './reportComparison';
@@ -97,6 +98,37 @@ describe('parallel row passes on worker threads', function () {
       assert.equal(rowsPerThread.length, 1);
       assert.equal(rowsPerThread[0]!.length, workers);
       for (const rows of rowsPerThread[0]!) assert.ok(rows >= Math.floor(7400 / workers) - 1 && rows <= Math.ceil(7400 / workers) + 1, `rows per thread ${rowsPerThread[0]!.join(', ')}`);
+    }
+  });
+
+  it('a Parquet file of one row group spilled to scratch files: each thread spills its run once, and the report is the single-thread one', async () => {
+    // Written by DuckDB, as above; `coarse` is dictionary-encoded. The limits are lowered so that
+    // this small file spills (the defaults: dictionaries of 32 MiB, runs of 131 072 rows).
+    const { DuckDBInstance } = await import('@duckdb/node-api');
+    const connection = await (await DuckDBInstance.create(':memory:')).connect();
+    const parquet = join(folder, 'fleet-spilled.parquet');
+    await connection.run(`COPY (SELECT *, round(feature_1 * 4, 0) AS coarse FROM read_csv('${file}', header = true)) TO '${parquet}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 1000000)`);
+    connection.closeSync();
+    const single = await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, 1, workerScript);
+    const scratch = join(folder, 'scratch');
+    useScratchFolder(scratch, { dictionaryBytes: 1, minRows: 100 });
+    try {
+      const jobs: string[] = [];
+      assertSameReport(single, await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, 2, workerScript, undefined, jobs));
+      assert.deepEqual(jobs, ['first×2', 'folds×2', 'second×2']);
+      // Two runs, one file each, written by the first pass and read by the folds and the second.
+      const files = readdirSync(scratch).sort();
+      assert.equal(files.length, 2, files.join(', '));
+      for (const name of files) assert.match(name, /^parquet-[0-9a-f]{8}-g0-r\d+-\d+\.f64$/);
+      assert.deepEqual(files.map((name) => Number(/-r(\d+)-/.exec(name)![1])).sort((a, b) => a - b), [0, 3700]);
+      // One spilled column (coarse) × 3 700 rows × 8 bytes each.
+      for (const name of files) assert.equal(statSync(join(scratch, name)).size, 3700 * 8);
+      // One thread alone spills the whole group.
+      assertSameReport(single, await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, 1, workerScript));
+      assert.equal(readdirSync(scratch).length, 3);
+    } finally {
+      useScratchFolder(null);
+      removeScratchFolder(scratch);
     }
   });
 

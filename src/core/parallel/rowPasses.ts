@@ -76,7 +76,7 @@ async function splitSource(source: ByteSource, inspection: TableInspection, scan
     // inside a group passes over the rows before it (decompressed, not decoded into values).
     const shares: SourceShare[] = [];
     // One group: every thread needs all its dictionaries; hold them once.
-    const dictionaries = groups.length === 1 ? await shareParquetDictionaries(source) : null;
+    const dictionaries = groups.length === 1 ? await shareParquetDictionaries(source, Math.floor(groups[0]! / Math.min(scanner.workers, groups[0]!))) : null;
     let start = 0;
     for (const count of groups) {
       const pieces = Math.min(scanner.workers, count);

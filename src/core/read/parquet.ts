@@ -9,7 +9,9 @@
  * they cost no more CPU than hysnappy on the whole page and ~70 MB less peak RSS in a two-worker fit), so memory is bounded by the columns × (two windows + one dictionary) however
  * large a row group or page is (DuckDB writes one page per column chunk, even in a row group of
  * millions of rows). The dictionaries are the part that may be large: DuckDB's can hold most of a
- * column's distinct values.
+ * column's distinct values. Where they are (32 MiB and more for a share of a group) and the thread
+ * has scratch space, the share's dictionary-encoded number columns are spilled first, one column at
+ * a time, and its rows read back from the spill in order (parquetSpill.ts).
  */
 import { parquetMetadataAsync, parquetRead, type AsyncBuffer, type ColumnData, type DecodedArray, type FileMetaData } from 'hyparquet';
 import { compressors } from 'hyparquet-compressors';
@@ -21,6 +23,8 @@ import { isParquetMagic } from './format';
 import { asyncBufferOf, ParquetFeatureReader, textOf } from './parquetValues';
 import { ColumnBuffers, FlatColumnCursor, GrowingDictionary, type ColumnPiece, type CursorTuning, type KeptDictionary } from './parquetCursor';
 import { parquetColumns, type ParquetColumn } from './parquetSchema';
+import { columnsToSpill, groupSpills, SpillReader, spillName, writeSpill } from './parquetSpill';
+import { scratchSpace } from './scratch';
 import { PassProgress } from './progress';
 import { readCopy } from './readBytes';
 import { cellRulesFor } from './textOptions';
@@ -392,7 +396,7 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
   const only = request.rows;
   let scanned = 0;
   let groupStart = 0;
-  for (const group of opened.metadata.row_groups) {
+  for (const [groupIndex, group] of opened.metadata.row_groups.entries()) {
     const groupRows = Number(group.num_rows);
     const groupEnd = groupStart + groupRows;
     const from = only ? Math.max(groupStart, only.start) : groupStart;
@@ -401,17 +405,27 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
       groupStart = groupEnd;
       continue;
     }
-    const columns = targets.map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning, target.buffers) }));
-    // Rows of the group before a share's first row are passed over.
-    if (from > groupStart) for (const { rows } of columns) await rows.skip(from - groupStart);
-    for (let first = from; first < to; first += batchRows) {
-      const n = Math.min(batchRows, to - first);
-      if (d > 0) values.fill(NaN, 0, n * d);
-      if (!label) labels.fill(-1, 0, n);
-      for (const { target, rows } of columns) await rows.read(n, (piece, at) => storePiece(target, piece, at, first));
-      request.onBatch({ rows: n, firstRow: first, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, labelTexts);
-      scanned += n;
-      progress.update(Math.round((source.size * (first + n)) / Math.max(1, opened.rows)));
+    const spill = await spillOf(opened, source, group, groupIndex, groupStart, from, to, targets, tuning, rules, () => progress.update(Math.round((source.size * from) / Math.max(1, opened.rows))));
+    const spilled = spill ? targets.flatMap((target) => (spill.columns.includes(target.column) ? [{ target, index: spill.columns.indexOf(target.column) }] : [])) : [];
+    const columns = targets.filter((target) => !spill?.columns.includes(target.column)).map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning, target.buffers) }));
+    try {
+      // Rows of the group before a share's first row are passed over.
+      if (from > groupStart) for (const { rows } of columns) await rows.skip(from - groupStart);
+      for (let first = from; first < to; first += batchRows) {
+        const n = Math.min(batchRows, to - first);
+        if (d > 0) values.fill(NaN, 0, n * d);
+        if (!label) labels.fill(-1, 0, n);
+        for (const { target, rows } of columns) await rows.read(n, (piece, at) => storePiece(target, piece, at, first));
+        for (const { target, index } of spilled) {
+          const { values: column, at } = await spill!.reader.rowsOf(index, first - from, n);
+          for (const slot of target.slots) for (let i = 0; i < n; i++) values[i * d + slot] = column[at + i]!;
+        }
+        request.onBatch({ rows: n, firstRow: first, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, labelTexts);
+        scanned += n;
+        progress.update(Math.round((source.size * (first + n)) / Math.max(1, opened.rows)));
+      }
+    } finally {
+      await spill?.reader.close();
     }
     groupStart = groupEnd;
   }
@@ -432,17 +446,55 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
 }
 
 /**
+ * The share's spill (parquetSpill.ts), when this thread has scratch space and the dictionaries of
+ * the share's feature columns are large: the one an earlier pass wrote, or one written now.
+ */
+async function spillOf(
+  opened: OpenedParquet,
+  source: ByteSource,
+  group: RowGroup,
+  groupIndex: number,
+  groupStart: number,
+  from: number,
+  to: number,
+  targets: readonly { column: string; slots: number[]; label: boolean }[],
+  tuning: ParquetTuning,
+  rules: ReturnType<typeof cellRulesFor>,
+  check: () => void,
+): Promise<{ columns: string[]; reader: SpillReader } | null> {
+  const scratch = scratchSpace();
+  if (!scratch) return null;
+  const space = scratch.space;
+  const candidates = targets.filter((target) => !target.label && target.slots.length > 0).map((target) => target.column);
+  const columns = columnsToSpill(opened.metadata, group, candidates, to - from, scratch.limits);
+  if (columns.length === 0) return null;
+  const name = spillName(source, groupIndex, from, to, columns);
+  const open = (): Promise<SpillReader | null> => SpillReader.open(space, name, columns.length, to - from);
+  let reader = await open();
+  if (!reader) {
+    const fail = (error: unknown, column: string, row: number): Error => columnError(error, source.name, column, row);
+    if (!(await writeSpill(space, name, source, opened.metadata, group, groupStart, from, to, columns, compressors, tuning, rules, check, fail))) return null;
+    reader = await open();
+  }
+  return reader ? { columns, reader } : null;
+}
+
+/**
  * For a file of one row group read by several threads (each its own run of rows, every one needing
  * every dictionary): the number dictionaries this thread has decoded for the group (inspect and
  * earlier passes decode them, in part: decoded to their ends here) moved into shared memory, so
  * that the threads hold them once. Null
- * when there is nothing to share, or no shared memory (a browser page that is not cross-origin isolated).
+ * when there is nothing to share, when the threads spill their shares instead (scratch space and
+ * large dictionaries: parquetSpill.ts), or no shared memory (a browser page that is not cross-origin isolated).
  */
-export async function shareParquetDictionaries(source: ByteSource): Promise<SharedDictionaries | null> {
+export async function shareParquetDictionaries(source: ByteSource, shareRows: number): Promise<SharedDictionaries | null> {
   if (typeof SharedArrayBuffer === 'undefined') return null;
   const opened = await openParquet(source);
   const kept = opened.dictionaries;
   if (opened.metadata.row_groups.length !== 1 || kept.group !== opened.metadata.row_groups[0]) return null;
+  // Dictionaries too large to hold: each thread spills its share instead (parquetSpill.ts).
+  const scratch = scratchSpace();
+  if (scratch && groupSpills(opened.metadata, kept.group, shareRows, scratch.limits)) return null;
   const shared: SharedDictionaries = [];
   for (const [offset, entry] of kept.byOffset) {
     // A dictionary decoded in part so far (GrowingDictionary) is decoded to its end: the other threads read anywhere in it.

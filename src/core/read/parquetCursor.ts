@@ -86,7 +86,7 @@ type StreamedType = keyof typeof NUMBER_ARRAYS;
 
 /** Signed integers and floats, which hyparquet's `convert` leaves as they are stored (not unsigned, dates, decimals, times). */
 const SIGNED_INTEGERS = new Set([undefined, 'INT_8', 'INT_16', 'INT_32', 'INT_64']);
-function plainNumbers(element: SchemaElement): boolean {
+export function plainNumbers(element: SchemaElement): boolean {
   const logical = element.logical_type;
   return SIGNED_INTEGERS.has(element.converted_type) && (logical === undefined || (logical.type === 'INTEGER' && logical.isSigned));
 }
@@ -117,6 +117,12 @@ export class ColumnBuffers {
   levels = new Uint8Array(0);
   indexes = new Int32Array(0);
   values: Float64Array | Float32Array | Int32Array | BigInt64Array | null = null;
+  /**
+   * A large number dictionary's memory, for a cursor whose dictionaries are not kept (a spill
+   * decodes one column after another: each takes the memory of the one before, which no one reads
+   * any more, rather than leaving it to the garbage collector).
+   */
+  dictionary: ArrayBuffer | null = null;
 }
 
 export class FlatColumnCursor {
@@ -394,8 +400,17 @@ export class FlatColumnCursor {
     if (size <= this.tuning.streamPageBytes || (this.codec !== 'UNCOMPRESSED' && this.codec !== 'SNAPPY')) return null;
     if (!(this.decoder.type in NUMBER_ARRAYS) || !plainNumbers(this.element)) return null;
     const Type = NUMBER_ARRAYS[this.decoder.type as StreamedType];
-    if (header.uncompressed_page_size < count * Type.BYTES_PER_ELEMENT) throw new StreamDamaged(`a dictionary page of ${header.uncompressed_page_size} bytes for ${count} values`);
-    return new GrowingDictionary(this.source, Type, count, dataOffset, header, this.decoder, this.tuning);
+    const length = count * Type.BYTES_PER_ELEMENT;
+    if (header.uncompressed_page_size < length) throw new StreamDamaged(`a dictionary page of ${header.uncompressed_page_size} bytes for ${count} values`);
+    let memory: ArrayBuffer | SharedArrayBuffer;
+    if (this.dictionaries === undefined) {
+      if (this.buffers.dictionary === null || this.buffers.dictionary.byteLength < length) this.buffers.dictionary = new ArrayBuffer(length);
+      memory = this.buffers.dictionary;
+    } else {
+      // Kept for the next pass, and shared with the other threads where there is shared memory (shareParquetDictionaries).
+      memory = typeof SharedArrayBuffer === 'undefined' ? new ArrayBuffer(length) : new SharedArrayBuffer(length);
+    }
+    return new GrowingDictionary(this.source, Type, count, memory, dataOffset, header, this.decoder, this.tuning);
   }
 
   /**
@@ -514,8 +529,8 @@ function decodeDictionary(compressed: Uint8Array, header: PageHeader, decoder: D
 
 /**
  * A large dictionary of plain numbers, decompressed straight into its array (no compressed or
- * decompressed page copy beside it; in shared memory where there is one, so that the threads that
- * read the same row group hold it once: shareParquetDictionaries) and only as far as the indexes
+ * decompressed page copy beside it; when kept, in shared memory where there is one, so that the
+ * threads that read the same row group hold it once: shareParquetDictionaries) and only as far as the indexes
  * read so far reach. Writers number the entries in order of first appearance (DuckDB, Arrow,
  * parquet-mr), so the first rows of a row group take only its first entries: a first look at a file
  * of one large row group used to decode every dictionary first (the 1 GB benchmark table's: ~130 MB,
@@ -536,16 +551,15 @@ export class GrowingDictionary {
     private readonly source: ByteSource,
     Type: NumberArrayType,
     count: number,
+    memory: ArrayBuffer | SharedArrayBuffer,
     private readonly dataOffset: number,
     private readonly header: PageHeader,
     private readonly decoder: Decoder & { codec: CompressionCodec; compressors: Compressors },
     private readonly tuning: CursorTuning,
   ) {
     this.width = Type.BYTES_PER_ELEMENT;
-    const length = count * this.width;
-    const memory = typeof SharedArrayBuffer === 'undefined' ? new ArrayBuffer(length) : new SharedArrayBuffer(length);
-    this.values = new Type(memory as ArrayBuffer) as DecodedArray;
-    this.target = new Uint8Array(memory);
+    this.values = new Type(memory as ArrayBuffer, 0, count) as DecodedArray;
+    this.target = new Uint8Array(memory, 0, count * this.width);
   }
 
   get complete(): boolean {

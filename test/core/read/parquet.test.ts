@@ -12,6 +12,7 @@ import { join } from 'node:path';
 import { CancelledError, DataError } from '../../../src/core/errors';
 import { inspectTable, scanTable } from '../../../src/core/read/index';
 import { adoptParquetDictionaries, DEFAULT_PARQUET_TUNING, scanParquet, shareParquetDictionaries, type ParquetTuning } from '../../../src/core/read/parquet';
+import { memoryScratchSpace, ScratchUnavailable, useScratchSpace, type ScratchSpace } from '../../../src/core/read/scratch';
 import type { ScanSummary, TableInspection } from '../../../src/core/read/types';
 import { memorySource, type ByteSource, type Progress } from '../../../src/core/source';
 
@@ -317,7 +318,7 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
       // as postMessage passes them): in shared memory, and the other's run reads the same values with them.
       const decoding = memorySource('large.parquet', bytes);
       await scanAll(bytes, 'large.parquet', inspection, features, { streamPageBytes: 0, readBytes: 1000, batchRows: 4096 }, { start: 0, end: 10 }, decoding);
-      const shared = await shareParquetDictionaries(decoding);
+      const shared = await shareParquetDictionaries(decoding, ROWS / 2);
       assert.ok(shared && shared.length > 0, 'number dictionaries to share');
       for (const [, values] of shared) assert.ok(values.buffer instanceof SharedArrayBuffer);
       const adopting = memorySource('large.parquet', bytes);
@@ -329,6 +330,165 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
       );
     });
   }
+
+  it('spills the dictionary-encoded number columns of a share to scratch space, once, and reads the same values from it', async () => {
+    const { DuckDBInstance } = await import('@duckdb/node-api');
+    const connection = await (await DuckDBInstance.create(':memory:')).connect();
+    const path = join(folder, 'spill.parquet');
+    const rows = 240_000;
+    // wear: most values distinct, every 17th missing (a dictionary with definition levels); temp: FLOAT; cycles:
+    // INTEGER; serial: BIGINT (read through its own path, never spilled); fault: the label's dictionary.
+    await connection.run(
+      `CREATE TABLE pumps AS SELECT CASE WHEN i % 17 = 0 THEN NULL ELSE ((i * 7919) % 30011) * 0.001 END::DOUBLE AS wear, ((i % 5003) * 0.5)::FLOAT AS temp, ` +
+        `(i % 20011)::INTEGER AS cycles, (i % 3001)::BIGINT * 1000000007 AS serial, ['healthy', 'cavitation', 'seal leak'][i % 3 + 1] AS fault FROM range(${rows}) t(i)`,
+    );
+    await connection.run(`COPY pumps TO '${path}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 10000000)`);
+    connection.closeSync();
+    const bytes = new Uint8Array(readFileSync(path));
+    const metadata = parquetMetadata(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);
+    const chunks = new Map(metadata.row_groups[0]!.columns.map((chunk) => [chunk.meta_data!.path_in_schema[0]!, chunk.meta_data!]));
+    for (const name of ['wear', 'temp', 'cycles', 'serial']) assert.ok(chunks.get(name)!.dictionary_page_offset !== undefined, `${name} is dictionary-encoded`);
+    const features = ['wear', 'temp', 'cycles', 'serial'];
+    const inspection = await inspectTable(memorySource('spill.parquet', bytes));
+    const tuning = { batchRows: 4096 };
+    const direct = await scanAll(bytes, 'spill.parquet', inspection, features, tuning);
+
+    // Bytes of the spilled columns' dictionary pages read from the source.
+    const dictionaries = ['wear', 'temp', 'cycles'].map((name) => [Number(chunks.get(name)!.dictionary_page_offset), Number(chunks.get(name)!.data_page_offset)] as const);
+    let dictionaryRead = 0;
+    const counting: ByteSource = {
+      name: 'spill.parquet',
+      size: bytes.length,
+      read: async (offset, length) => {
+        const piece = bytes.subarray(offset, Math.min(offset + length, bytes.length));
+        for (const [start, end] of dictionaries) dictionaryRead += Math.max(0, Math.min(offset + piece.length, end) - Math.max(offset, start));
+        return piece;
+      },
+    };
+    const space = memoryScratchSpace();
+    useScratchSpace(space, { dictionaryBytes: 1, minRows: 1000 });
+    try {
+      const spilled = await scanAll(bytes, 'spill.parquet', inspection, features, tuning, undefined, counting);
+      assert.equal(space.names().length, 1);
+      // wear, temp and cycles: a column of doubles each; serial (BIGINT) and the label stay in the file.
+      assert.equal(space.size(space.names()[0]!), 3 * rows * 8);
+      assert.ok(dictionaryRead > 0);
+      for (let i = 0; i < direct.values.length; i++) if (!Object.is(spilled.values[i], direct.values[i])) assert.fail(`${features[i % 4]} row ${Math.floor(i / 4)}: ${spilled.values[i]} vs ${direct.values[i]}`);
+      assert.deepEqual(spilled.labels, direct.labels);
+      assert.deepEqual(spilled.dictionary, direct.dictionary);
+      assert.deepEqual(spilled.firstRows, direct.firstRows);
+      // The next pass over the share reads the spill: no dictionary page of a spilled column again.
+      dictionaryRead = 0;
+      const again = await scanAll(bytes, 'spill.parquet', inspection, features, tuning, undefined, counting);
+      assert.equal(dictionaryRead, 0);
+      assert.equal(space.names().length, 1);
+      assert.ok(again.values.every((value, i) => Object.is(value, direct.values[i])));
+
+      // Runs of the group, as the threads of a parallel scan read it: each its own spill, written after a skip.
+      const cuts = [0, 1, 99_999, 180_000, rows];
+      for (let i = cuts.length - 2; i >= 0; i--) {
+        const run = await scanAll(bytes, 'spill.parquet', inspection, features, { batchRows: 1000 }, { start: cuts[i]!, end: cuts[i + 1]! });
+        const want = direct.values.slice(cuts[i]! * 4, cuts[i + 1]! * 4);
+        assert.ok(run.values.length === want.length && run.values.every((value, k) => Object.is(value, want[k])), `run ${cuts[i]}–${cuts[i + 1]}`);
+      }
+      // The one-row run is under minRows: read as it is, not spilled.
+      assert.equal(space.names().length, 1 + 3);
+
+      // With the dictionaries shared by the threads' memory instead, they would all be held: a group that spills shares none.
+      const decoding = memorySource('spill.parquet', bytes);
+      await scanAll(bytes, 'spill.parquet', inspection, features, tuning, { start: 0, end: 10 }, decoding);
+      assert.equal(await shareParquetDictionaries(decoding, rows / 2), null);
+      useScratchSpace(null);
+      assert.ok(await shareParquetDictionaries(decoding, rows / 2), 'without scratch space the dictionaries are shared');
+    } finally {
+      useScratchSpace(null);
+    }
+
+    // A scratch space that cannot take the file, at once or part way: the rows are read as they are; a partial file is discarded.
+    for (const failAt of [0, 3]) {
+      const inner = memoryScratchSpace();
+      let discarded = 0;
+      const failing: ScratchSpace = {
+        open: (name) => inner.open(name),
+        async create(name) {
+          if (failAt === 0) throw new ScratchUnavailable('no space');
+          const writer = await inner.create(name);
+          let writes = 0;
+          return {
+            write: async (offset, data) => {
+              if (++writes >= failAt) throw new ScratchUnavailable('disk full');
+              await writer.write(offset, data);
+            },
+            commit: () => writer.commit(),
+            discard: async () => {
+              discarded++;
+              await writer.discard();
+            },
+          };
+        },
+      };
+      useScratchSpace(failing, { dictionaryBytes: 1, minRows: 1000 });
+      try {
+        const read = await scanAll(bytes, 'spill.parquet', inspection, features, tuning);
+        assert.ok(read.values.every((value, i) => Object.is(value, direct.values[i])), `scratch failing at write ${failAt}`);
+        assert.deepEqual(inner.names(), []);
+        assert.equal(discarded, failAt === 0 ? 0 : 1);
+      } finally {
+        useScratchSpace(null);
+      }
+    }
+
+    // Cancelled while spilling: nothing committed, the partial file discarded, CancelledError.
+    const cancelling = memoryScratchSpace();
+    useScratchSpace(cancelling, { dictionaryBytes: 1, minRows: 1000 });
+    try {
+      const abort = new AbortController();
+      let discards = 0;
+      const watched: ScratchSpace = {
+        open: (name) => cancelling.open(name),
+        async create(name) {
+          const writer = await cancelling.create(name);
+          return {
+            write: async (offset, data) => {
+              await writer.write(offset, data);
+              abort.abort();
+            },
+            commit: () => writer.commit(),
+            discard: async () => {
+              discards++;
+              await writer.discard();
+            },
+          };
+        },
+      };
+      useScratchSpace(watched, { dictionaryBytes: 1, minRows: 1000 });
+      const index = (column: string): number => inspection.columns.findIndex((c) => c.name === column);
+      await assert.rejects(
+        scanParquet({ source: memorySource('spill.parquet', bytes), inspection, plan: { label: index('fault'), features: features.map(index) }, control: { signal: abort.signal }, onBatch: () => undefined }),
+        CancelledError,
+      );
+      assert.deepEqual(cancelling.names(), []);
+      assert.equal(discards, 1);
+    } finally {
+      useScratchSpace(null);
+    }
+
+    // A damaged data page of a spilled column: the scan's DataError, naming the file and the column.
+    const wear = chunks.get('wear')!;
+    const damaged = bytes.slice();
+    damaged.fill(0xff, Number(wear.data_page_offset) + 64, Number(wear.data_page_offset) + Number(wear.total_compressed_size) - (Number(wear.data_page_offset) - Number(wear.dictionary_page_offset)) - 64);
+    useScratchSpace(memoryScratchSpace(), { dictionaryBytes: 1, minRows: 1000 });
+    try {
+      await assert.rejects(scanAll(damaged, 'spill.parquet', inspection, features, tuning), (error: unknown) => {
+        assert.ok(error instanceof DataError, String(error));
+        assert.equal(error.where.column, 'wear');
+        assert.match(error.message, /spill\.parquet: column wear cannot be decoded/);
+        return true;
+      });
+    } finally {
+      useScratchSpace(null);
+    }
+  });
 
   it('a first look at the first rows decodes only the start of a large dictionary; later reads go on from there', async () => {
     const { DuckDBInstance } = await import('@duckdb/node-api');
@@ -379,7 +539,7 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
     // Shared with another thread after a part was decoded: decoded to its end first.
     const partly = memorySource('first-look.parquet', bytes);
     await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], {}, { start: 0, end: 10 }, partly);
-    const shared = await shareParquetDictionaries(partly);
+    const shared = await shareParquetDictionaries(partly, expected.length / 2);
     assert.ok(shared && shared.length === 1);
     const adopting = memorySource('first-look.parquet', bytes);
     await adoptParquetDictionaries(adopting, structuredClone(shared));
