@@ -246,6 +246,7 @@ export function openFirstPass(
         control: pass.control,
         ...(share.range ? { range: share.range } : {}),
         ...(share.rows ? { rows: share.rows } : {}),
+        ...(limit !== null && limit !== undefined ? { rowLimit: limit } : {}),
         onBatch,
       }),
     );

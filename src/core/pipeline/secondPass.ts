@@ -230,6 +230,7 @@ export function openSecondPass(input: Omit<SecondPassInput, keyof SecondPassShar
         control: pass.control,
         ...(share.range ? { range: share.range } : {}),
         ...(share.rows ? { rows: share.rows } : {}),
+        ...(input.rowLimit !== null ? { rowLimit: input.rowLimit } : {}),
         onBatch,
       }),
     );

@@ -405,7 +405,9 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
       groupStart = groupEnd;
       continue;
     }
-    const spill = await spillOf(opened, source, group, groupIndex, groupStart, from, to, targets, tuning, rules, () => progress.update(Math.round((source.size * from) / Math.max(1, opened.rows))));
+    // A provisional answer's limit: the rows after it will not be read.
+    const needed = Math.min(to, Math.max(from, request.rowLimit ?? to));
+    const spill = await spillOf(opened, source, group, groupIndex, groupStart, from, to, needed - from, targets, tuning, rules, () => progress.update(Math.round((source.size * from) / Math.max(1, opened.rows))));
     const spilled = spill ? targets.flatMap((target) => (spill.columns.includes(target.column) ? [{ target, index: spill.columns.indexOf(target.column) }] : [])) : [];
     const columns = targets.filter((target) => !spill?.columns.includes(target.column)).map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning, target.buffers) }));
     try {
@@ -457,6 +459,7 @@ async function spillOf(
   groupStart: number,
   from: number,
   to: number,
+  rowsToRead: number,
   targets: readonly { column: string; slots: number[]; label: boolean }[],
   tuning: ParquetTuning,
   rules: ReturnType<typeof cellRulesFor>,
@@ -466,7 +469,7 @@ async function spillOf(
   if (!scratch) return null;
   const space = scratch.space;
   const candidates = targets.filter((target) => !target.label && target.slots.length > 0).map((target) => target.column);
-  const columns = columnsToSpill(opened.metadata, group, candidates, to - from, scratch.limits);
+  const columns = columnsToSpill(opened.metadata, group, candidates, rowsToRead, scratch.limits);
   if (columns.length === 0) return null;
   const name = spillName(source, groupIndex, from, to, columns);
   const open = (): Promise<SpillReader | null> => SpillReader.open(space, name, columns.length, to - from);

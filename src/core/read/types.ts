@@ -138,6 +138,11 @@ export interface ScanRequest {
   range?: ByteRange;
   /** Parquet: scan only the data rows [start, end) (a parallel scan's share: whole row groups). */
   rows?: { start: number; end: number };
+  /**
+   * The caller stops the scan at this data row (a provisional answer's limit): a reader need not
+   * prepare for the rows after it (the Parquet reader spills no row group for a first look).
+   */
+  rowLimit?: number;
   /** Which pass of the caller this scan is, for its progress events; default `rows`. */
   pass?: Progress['pass'];
 }

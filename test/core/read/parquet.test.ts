@@ -9,6 +9,7 @@ import { parquetWriteBuffer } from 'hyparquet-writer';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { analyze } from '../../../src/core/analyze';
 import { CancelledError, DataError } from '../../../src/core/errors';
 import { inspectTable, scanTable } from '../../../src/core/read/index';
 import { adoptParquetDictionaries, DEFAULT_PARQUET_TUNING, scanParquet, shareParquetDictionaries, type ParquetTuning } from '../../../src/core/read/parquet';
@@ -393,6 +394,19 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
       }
       // The one-row run is under minRows: read as it is, not spilled.
       assert.equal(space.names().length, 1 + 3);
+
+      // A first look (the editor's provisional answer) reads only the first rows: both its passes read the group
+      // as it is, whatever its size; the full analysis spills it.
+      const look = memoryScratchSpace();
+      useScratchSpace(look, { dictionaryBytes: 1, minRows: 1000 });
+      const provisional = await analyze(memorySource('spill.parquet', bytes), { label: 'fault', features }, { provisionalBytes: 2000 });
+      assert.equal(provisional.report.provisional, true);
+      assert.ok(provisional.report.rows.total < 1000, `${provisional.report.rows.total} rows`);
+      assert.deepEqual(look.names(), []);
+      const full = await analyze(memorySource('spill.parquet', bytes), { label: 'fault', features });
+      assert.equal(full.report.rows.total, rows);
+      assert.equal(look.names().length, 1);
+      useScratchSpace(space, { dictionaryBytes: 1, minRows: 1000 });
 
       // With the dictionaries shared by the threads' memory instead, they would all be held: a group that spills shares none.
       const decoding = memorySource('spill.parquet', bytes);
