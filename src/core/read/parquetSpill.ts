@@ -37,22 +37,32 @@ function dictionaryBytes(meta: NonNullable<RowGroup['columns'][number]['meta_dat
   return Math.max(0, Number(meta.data_page_offset) - Number(meta.dictionary_page_offset));
 }
 
-/** Whether column `name` of the group is read as plain numbers from a dictionary (its chunk can be spilled). */
-function spillable(metadata: FileMetaData, group: RowGroup, name: string): number {
+/** Bytes of the dictionary pages of column `name`'s chunk in the group, when its type is one the spill takes (else 0). */
+function candidateBytes(group: RowGroup, name: string): number {
   const chunk = group.columns.find((candidate) => candidate.meta_data?.path_in_schema.length === 1 && candidate.meta_data.path_in_schema[0] === name);
   const meta = chunk?.meta_data;
   if (!chunk || !meta || chunk.file_path !== undefined || !SPILLED_TYPES.has(meta.type)) return 0;
-  const schemaPath = getSchemaPath(metadata.schema, [name]);
-  if (!isFlatColumn(schemaPath) || !plainNumbers(schemaPath[schemaPath.length - 1]!.element)) return 0;
   return dictionaryBytes(meta);
 }
 
-/** The columns of a share of `rows` rows of the group to spill (of `candidates`, in their order): none unless their dictionaries are large. */
+/** Whether column `name` is flat and read as plain numbers (no logical type that changes its meaning). */
+function plainFlatColumn(metadata: FileMetaData, name: string): boolean {
+  const schemaPath = getSchemaPath(metadata.schema, [name]);
+  return isFlatColumn(schemaPath) && plainNumbers(schemaPath[schemaPath.length - 1]!.element);
+}
+
+/**
+ * The columns of a share of `rows` rows of the group to spill (of `candidates`, in their order):
+ * none unless their dictionaries are large. The sizes come from the footer's offsets first: a
+ * group of small dictionaries (the common case, checked for every group of every scan) is turned
+ * down without a look at the schema.
+ */
 export function columnsToSpill(metadata: FileMetaData, group: RowGroup, candidates: readonly string[], rows: number, limits: SpillLimits): string[] {
   if (rows < limits.minRows) return [];
-  const sizes = candidates.map((name) => spillable(metadata, group, name));
-  const total = sizes.reduce((a, b) => a + b, 0);
-  return total >= limits.dictionaryBytes ? candidates.filter((_, i) => sizes[i]! > 0) : [];
+  const sized = candidates.map((name) => ({ name, bytes: candidateBytes(group, name) })).filter((c) => c.bytes > 0);
+  if (sized.reduce((sum, c) => sum + c.bytes, 0) < limits.dictionaryBytes) return [];
+  const spilled = sized.filter((c) => plainFlatColumn(metadata, c.name));
+  return spilled.reduce((sum, c) => sum + c.bytes, 0) >= limits.dictionaryBytes ? spilled.map((c) => c.name) : [];
 }
 
 /** Whether a share of `rows` rows of the group would be spilled whatever features a pass reads (the dictionaries of all its columns). */
