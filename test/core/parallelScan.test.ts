@@ -68,6 +68,15 @@ describe('parallel row passes on worker threads', function () {
   });
   after(() => rmSync(folder, { recursive: true, force: true }));
 
+  /** The CSV as Parquet in one row group, written by DuckDB (npm @duckdb/node-api, a dev dependency), with a column `coarse` of few distinct values. */
+  async function oneGroupParquet(parquet: string): Promise<string> {
+    const { DuckDBInstance } = await import('@duckdb/node-api');
+    const connection = await (await DuckDBInstance.create(':memory:')).connect();
+    await connection.run(`COPY (SELECT *, round(feature_1 * 4, 0) AS coarse FROM read_csv('${file}', header = true)) TO '${parquet}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 1000000)`);
+    connection.closeSync();
+    return parquet;
+  }
+
   it('two and three workers give the single-thread report (leave-one-out and k-fold)', async () => {
     const before = createHash('sha256').update(readFileSync(file)).digest('hex');
     const modified = statSync(file).mtimeMs;
@@ -80,13 +89,8 @@ describe('parallel row passes on worker threads', function () {
   });
 
   it('a Parquet file of one row group: two and three workers, each a run of its rows, give the single-thread report', async () => {
-    // Written by DuckDB (npm @duckdb/node-api, a dev dependency) from the CSV, in one row group;
     // `coarse` has few distinct values, so it is dictionary-encoded and its dictionary is shared.
-    const { DuckDBInstance } = await import('@duckdb/node-api');
-    const connection = await (await DuckDBInstance.create(':memory:')).connect();
-    const parquet = join(folder, 'fleet.parquet');
-    await connection.run(`COPY (SELECT *, round(feature_1 * 4, 0) AS coarse FROM read_csv('${file}', header = true)) TO '${parquet}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 1000000)`);
-    connection.closeSync();
+    const parquet = await oneGroupParquet(join(folder, 'fleet.parquet'));
     const single = await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, 1, workerScript);
     assert.equal(single.rows.total, 7400);
     for (const workers of [2, 3]) {
@@ -102,13 +106,9 @@ describe('parallel row passes on worker threads', function () {
   });
 
   it('a Parquet file of one row group spilled to scratch files: each thread spills its run once, and the report is the single-thread one', async () => {
-    // Written by DuckDB, as above; `coarse` is dictionary-encoded. The limits are lowered so that
-    // this small file spills (the defaults: dictionaries of 32 MiB, runs of 131 072 rows).
-    const { DuckDBInstance } = await import('@duckdb/node-api');
-    const connection = await (await DuckDBInstance.create(':memory:')).connect();
-    const parquet = join(folder, 'fleet-spilled.parquet');
-    await connection.run(`COPY (SELECT *, round(feature_1 * 4, 0) AS coarse FROM read_csv('${file}', header = true)) TO '${parquet}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 1000000)`);
-    connection.closeSync();
+    // `coarse` is dictionary-encoded. The limits are lowered so that this small file spills (the
+    // defaults: dictionaries of 32 MiB, runs of 131 072 rows).
+    const parquet = await oneGroupParquet(join(folder, 'fleet-spilled.parquet'));
     const single = await fitFile(parquet, { cv: 'kfold:5', plotBudget: 2000 }, 1, workerScript);
     const scratch = join(folder, 'scratch');
     useScratchFolder(scratch, { dictionaryBytes: 1, minRows: 100 });
