@@ -80,7 +80,8 @@ export class LabelDictionary {
   }
 }
 
-function hashBytes(bytes: Uint8Array, start: number, end: number): number {
+/** FNV-1a over bytes[start, end), as a signed 32-bit integer. */
+export function hashBytes(bytes: Uint8Array, start: number, end: number): number {
   let hash = FNV_OFFSET;
   for (let i = start; i < end; i++) hash = Math.imul(hash ^ bytes[i], FNV_PRIME);
   return hash | 0;

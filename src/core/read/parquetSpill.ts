@@ -23,6 +23,7 @@ import { ColumnBuffers, FlatColumnCursor, plainNumbers, type CursorTuning } from
 import { ParquetFeatureReader } from './parquetValues';
 import { ScratchUnavailable, type ScratchReader, type ScratchSpace, type SpillLimits } from './scratch';
 import type { CellRules } from './cellValue';
+import { hashBytes } from './labelDictionary';
 
 type RowGroup = FileMetaData['row_groups'][number];
 
@@ -71,11 +72,10 @@ export function groupSpills(metadata: FileMetaData, group: RowGroup, rows: numbe
   return columnsToSpill(metadata, group, names, rows, limits).length > 0;
 }
 
-/** FNV-1a over the text's UTF-16 code units, as 8 hex digits (a name, not a checksum). */
+/** The label dictionary's FNV-1a over the text's UTF-8 bytes, as 8 hex digits (a name, not a checksum). */
 function fingerprint(text: string): string {
-  let hash = 0x811c9dc5;
-  for (let i = 0; i < text.length; i++) hash = Math.imul(hash ^ text.charCodeAt(i), 0x01000193) >>> 0;
-  return hash.toString(16).padStart(8, '0');
+  const bytes = new TextEncoder().encode(text);
+  return (hashBytes(bytes, 0, bytes.length) >>> 0).toString(16).padStart(8, '0');
 }
 
 /** The scratch file's name for rows [from, to) of group `group` of the source, spilled columns `columns`. */
