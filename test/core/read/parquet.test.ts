@@ -344,6 +344,8 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
         `(i % 20011)::INTEGER AS cycles, (i % 3001)::BIGINT * 1000000007 AS serial, ['healthy', 'cavitation', 'seal leak'][i % 3 + 1] AS fault FROM range(${rows}) t(i)`,
     );
     await connection.run(`COPY pumps TO '${path}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 10000000)`);
+    // DuckDB's own read of the file: what the spilled values are checked against.
+    const duckRows = (await connection.runAndReadAll(`SELECT wear, temp, cycles, serial FROM read_parquet('${path}')`)).getRows();
     connection.closeSync();
     const bytes = new Uint8Array(readFileSync(path));
     const metadata = parquetMetadata(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);
@@ -375,6 +377,14 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
       assert.equal(space.size(space.names()[0]!), 3 * rows * 8);
       assert.ok(dictionaryRead > 0);
       for (let i = 0; i < direct.values.length; i++) if (!Object.is(spilled.values[i], direct.values[i])) assert.fail(`${features[i % 4]} row ${Math.floor(i / 4)}: ${spilled.values[i]} vs ${direct.values[i]}`);
+      assert.equal(duckRows.length, rows);
+      for (let row = 0; row < rows; row++) {
+        for (let slot = 0; slot < 4; slot++) {
+          const cell = duckRows[row]![slot];
+          const want = cell === null ? NaN : Number(cell);
+          if (!Object.is(spilled.values[row * 4 + slot], want)) assert.fail(`${features[slot]} row ${row}: ${spilled.values[row * 4 + slot]}, DuckDB reads ${want}`);
+        }
+      }
       assert.deepEqual(spilled.labels, direct.labels);
       assert.deepEqual(spilled.dictionary, direct.dictionary);
       assert.deepEqual(spilled.firstRows, direct.firstRows);
