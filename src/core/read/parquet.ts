@@ -17,11 +17,11 @@ import { parquetMetadataAsync, parquetRead, type AsyncBuffer, type ColumnData, t
 import { compressors } from 'hyparquet-compressors';
 import { CancelledError, DataError } from '../errors';
 import type { ByteSource, RunControl } from '../source';
-import { CELL_MISSING, CELL_TEXT } from './cellValue';
+import { CELL_MISSING, CELL_TEXT, type CellRules } from './cellValue';
 import { ColumnSample } from './columnSample';
 import { isParquetMagic } from './format';
 import { asyncBufferOf, ParquetFeatureReader, textOf } from './parquetValues';
-import { ColumnBuffers, FlatColumnCursor, GrowingDictionary, type ColumnPiece, type CursorTuning, type KeptDictionary } from './parquetCursor';
+import { ColumnBuffers, copyNumbers, FlatColumnCursor, forEachValue, GrowingDictionary, isNumberArray, type ColumnPiece, type CursorTuning, type KeptDictionary, type NumberArray } from './parquetCursor';
 import { parquetColumns, type ParquetColumn } from './parquetSchema';
 import { columnsToSpill, groupSpills, SpillReader, spillName, writeSpill } from './parquetSpill';
 import { scratchSpace } from './scratch';
@@ -203,20 +203,6 @@ class ColumnRows {
   }
 }
 
-/** Calls visit(row, value) for each row of a piece (null for a missing value), `first` being the row of its first. */
-function forEachValue(piece: ColumnPiece, first: number, visit: (row: number, value: unknown) => void): void {
-  const { levels, levelStart, presentLevel, values, indexes, dictionary } = piece;
-  let next = piece.valueStart;
-  for (let i = 0; i < piece.rows; i++) {
-    if (levels && levels[levelStart + i] !== presentLevel) {
-      visit(first + i, null);
-      continue;
-    }
-    visit(first + i, indexes ? dictionary![indexes[next]] : values![next]);
-    next++;
-  }
-}
-
 /** Calls `visit(row, value)` for rows [rowStart, rowEnd) of a column's chunks, in row order. */
 function forEachRow(chunks: readonly ColumnData[], rowStart: number, rowEnd: number, visit: (row: number, value: unknown) => void): void {
   for (const chunk of chunks) {
@@ -226,9 +212,6 @@ function forEachRow(chunks: readonly ColumnData[], rowStart: number, rowEnd: num
   }
 }
 
-type NumberArray = Float64Array | Float32Array | Int32Array | Uint32Array;
-const isNumberArray = (values: unknown): values is NumberArray =>
-  values instanceof Float64Array || values instanceof Float32Array || values instanceof Int32Array || values instanceof Uint32Array;
 
 function schemaNotes(columns: ParquetColumn[]): ReaderNote[] {
   const notes: ReaderNote[] = [];
@@ -293,6 +276,142 @@ export async function inspectParquet(source: ByteSource, options: ReadOptions, c
   };
 }
 
+/** A needed column of a scan: the feature slots it fills, and whether it is the label. */
+interface ScanTarget {
+  column: string;
+  slots: number[];
+  label: boolean;
+  buffers: ColumnBuffers;
+}
+
+/**
+ * One scan's batch of rows and what the scan counts while filling it. A class, and the batch loop
+ * (readRows) a method of it apart from scanParquet's setup, for V8's sake: a parallel pass calls
+ * scanParquet once per share, and one optimised function holding both the loop and the setup (whose
+ * rarely run code meets other object shapes in the next share: "wrong map") was thrown away and
+ * compiled again for every share (~70 ms of compiling each time, measured with --trace-opt on
+ * the 1 GB table), the share meanwhile running in the interpreter. Closures made per scan and
+ * inlined into the loop are dropped with it; methods on a prototype are not.
+ */
+class ParquetBatch {
+  readonly values: Float64Array;
+  readonly labels: Int32Array;
+  readonly labelTexts: string[] = [];
+  readonly nonNumeric: number[];
+  readonly nonNumericExamples: CellExample[][];
+  readonly lostPrecision: number[];
+  private readonly labelIds = new Map<string, number>();
+  /** A dictionary-encoded label column: the id of each dictionary entry, found once (-2: not yet). */
+  private labelDictionary: DecodedArray | null = null;
+  private labelOfIndex = new Int32Array(0);
+  /** File rows read so far. */
+  scanned = 0;
+
+  constructor(
+    private readonly d: number,
+    readonly batchRows: number,
+    private readonly hasLabel: boolean,
+    private readonly rules: CellRules,
+    private readonly reader: ParquetFeatureReader,
+  ) {
+    this.values = new Float64Array(batchRows * d);
+    this.labels = new Int32Array(batchRows);
+    this.nonNumeric = new Array<number>(d).fill(0);
+    this.nonNumericExamples = Array.from({ length: d }, () => []);
+    this.lostPrecision = new Array<number>(d).fill(0);
+  }
+
+  /**
+   * Rows [from, to) of a row group, a batch at a time: each column's rows from its cursor, the
+   * spilled columns' from the spill (`from` being its first row), each batch handed to onBatch.
+   */
+  async readRows(
+    columns: readonly { target: ScanTarget; rows: ColumnRows }[],
+    spilled: readonly { target: ScanTarget; index: number }[],
+    spill: SpillReader | null,
+    from: number,
+    to: number,
+    onBatch: ScanRequest['onBatch'],
+    progress: PassProgress,
+    bytesPerRow: number,
+  ): Promise<void> {
+    const { values, labels, batchRows, d } = this;
+    for (let first = from; first < to; first += batchRows) {
+      const n = Math.min(batchRows, to - first);
+      if (d > 0) values.fill(NaN, 0, n * d);
+      if (!this.hasLabel) labels.fill(-1, 0, n);
+      for (const { target, rows } of columns) await rows.read(n, (piece, at) => this.storePiece(target, piece, at, first));
+      for (const { target, index } of spilled) {
+        const { values: column, at } = await spill!.rowsOf(index, first - from, n);
+        for (const slot of target.slots) for (let i = 0; i < n; i++) values[i * d + slot] = column[at + i]!;
+      }
+      onBatch({ rows: n, firstRow: first, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, this.labelTexts);
+      this.scanned += n;
+      progress.update(Math.round(bytesPerRow * (first + n)));
+    }
+  }
+
+  /** Labels are interned in row order, so ids follow the order of first appearance. */
+  private labelId(value: unknown): number {
+    const text = textOf(value, this.rules);
+    if (text === undefined) return -1;
+    let id = this.labelIds.get(text);
+    if (id === undefined) {
+      id = this.labelTexts.length;
+      this.labelIds.set(text, id);
+      this.labelTexts.push(text);
+    }
+    return id;
+  }
+
+  private storeFeature(slot: number, batchRow: number, row: number, value: unknown): void {
+    const { values, d, reader } = this;
+    if (typeof value === 'number') {
+      values[batchRow * d + slot] = value;
+      return;
+    }
+    values[batchRow * d + slot] = reader.valueOf(value);
+    if (reader.lostPrecision) this.lostPrecision[slot]++;
+    if (reader.lastKind === CELL_TEXT) {
+      this.nonNumeric[slot]++;
+      if (this.nonNumericExamples[slot]!.length < EXAMPLES) this.nonNumericExamples[slot]!.push({ row, text: textOf(value, this.rules) ?? '' });
+    }
+  }
+
+  /** Writes a piece of column `target` into batch rows at…, `first` being the file row of batch row 0. */
+  private storePiece(target: ScanTarget, piece: ColumnPiece, at: number, first: number): void {
+    const { levels, levelStart, presentLevel, indexes, dictionary, valueStart } = piece;
+    const rows = piece.rows;
+    if (target.label) {
+      const labels = this.labels;
+      if (indexes && dictionary) {
+        if (this.labelDictionary !== dictionary) {
+          this.labelDictionary = dictionary;
+          this.labelOfIndex = new Int32Array(dictionary.length).fill(-2);
+        }
+        const labelOfIndex = this.labelOfIndex;
+        let next = valueStart;
+        for (let i = 0; i < rows; i++) {
+          if (levels && levels[levelStart + i] !== presentLevel) {
+            labels[at + i] = -1;
+            continue;
+          }
+          const index = indexes[next++]!;
+          let id = labelOfIndex[index]!;
+          if (id === -2) id = labelOfIndex[index] = this.labelId(dictionary[index]);
+          labels[at + i] = id;
+        }
+      } else {
+        forEachValue(piece, at, (batchRow, value) => (labels[batchRow] = this.labelId(value)));
+      }
+    }
+    for (const slot of target.slots) {
+      if (copyNumbers(piece, this.values, at, this.d, slot)) continue;
+      forEachValue(piece, at, (batchRow, value) => this.storeFeature(slot, batchRow, first + batchRow, value));
+    }
+  }
+}
+
 export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = DEFAULT_PARQUET_TUNING): Promise<ScanSummary> {
   const { source, inspection, plan } = request;
   const name = source.name;
@@ -309,92 +428,17 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
   const features = plan.features.map(columnOf);
   const label = plan.label >= 0 ? columnOf(plan.label) : undefined;
   const needed = [...new Set([...(label ? [label.name] : []), ...features.map((column) => column.name)])];
-  const d = features.length;
-  const batchRows = Math.max(1, tuning.batchRows);
-  const values = new Float64Array(batchRows * d);
-  const labels = new Int32Array(batchRows);
-  const labelIds = new Map<string, number>();
-  const labelTexts: string[] = [];
-  const nonNumeric = new Array<number>(d).fill(0);
-  const nonNumericExamples: CellExample[][] = features.map(() => []);
-  const lostPrecision = new Array<number>(d).fill(0);
-  const reader = new ParquetFeatureReader(rules);
+  const batch = new ParquetBatch(features.length, Math.max(1, tuning.batchRows), label !== undefined, rules, new ParquetFeatureReader(rules));
   const progress = new PassProgress(request.control, request.pass ?? 'rows', source.size);
-  // Per needed column: the feature slots it fills, and whether it is the label.
-  const targets = needed.map((column) => ({
+  const bytesPerRow = source.size / Math.max(1, opened.rows);
+  const targets: ScanTarget[] = needed.map((column) => ({
     column,
     slots: features.flatMap((feature, slot) => (feature.name === column ? [slot] : [])),
     label: label?.name === column,
     buffers: new ColumnBuffers(),
   }));
 
-  // Labels are interned in row order, so ids follow the order of first appearance.
-  const labelId = (value: unknown): number => {
-    const text = textOf(value, rules);
-    if (text === undefined) return -1;
-    let id = labelIds.get(text);
-    if (id === undefined) {
-      id = labelTexts.length;
-      labelIds.set(text, id);
-      labelTexts.push(text);
-    }
-    return id;
-  };
-  // A dictionary-encoded label column: the id of each dictionary entry, found once (-2: not yet).
-  let labelDictionary: DecodedArray | null = null;
-  let labelOfIndex = new Int32Array(0);
-
-  const storeFeature = (slot: number, batchRow: number, row: number, value: unknown): void => {
-    if (typeof value === 'number') {
-      values[batchRow * d + slot] = value;
-      return;
-    }
-    values[batchRow * d + slot] = reader.valueOf(value);
-    if (reader.lostPrecision) lostPrecision[slot]++;
-    if (reader.lastKind === CELL_TEXT) {
-      nonNumeric[slot]++;
-      if (nonNumericExamples[slot].length < EXAMPLES) nonNumericExamples[slot].push({ row, text: textOf(value, rules) ?? '' });
-    }
-  };
-
-  /** Writes a piece of column `target` into batch rows at…, `first` being the file row of batch row 0. */
-  const storePiece = (target: (typeof targets)[number], piece: ColumnPiece, at: number, first: number): void => {
-    const { levels, levelStart, presentLevel, indexes, dictionary, valueStart } = piece;
-    const rows = piece.rows;
-    if (target.label) {
-      if (indexes && dictionary) {
-        if (labelDictionary !== dictionary) {
-          labelDictionary = dictionary;
-          labelOfIndex = new Int32Array(dictionary.length).fill(-2);
-        }
-        let next = valueStart;
-        for (let i = 0; i < rows; i++) {
-          if (levels && levels[levelStart + i] !== presentLevel) {
-            labels[at + i] = -1;
-            continue;
-          }
-          const index = indexes[next++];
-          let id = labelOfIndex[index];
-          if (id === -2) id = labelOfIndex[index] = labelId(dictionary[index]);
-          labels[at + i] = id;
-        }
-      } else {
-        forEachValue(piece, at, (batchRow, value) => (labels[batchRow] = labelId(value)));
-      }
-    }
-    for (const slot of target.slots) {
-      const source = indexes ? dictionary : piece.values;
-      if (!levels && isNumberArray(source)) {
-        if (indexes) for (let i = 0; i < rows; i++) values[(at + i) * d + slot] = source[indexes[valueStart + i]];
-        else for (let i = 0; i < rows; i++) values[(at + i) * d + slot] = source[valueStart + i];
-        continue;
-      }
-      forEachValue(piece, at, (batchRow, value) => storeFeature(slot, batchRow, first + batchRow, value));
-    }
-  };
-
   const only = request.rows;
-  let scanned = 0;
   let groupStart = 0;
   for (const [groupIndex, group] of opened.metadata.row_groups.entries()) {
     const groupRows = Number(group.num_rows);
@@ -407,25 +451,13 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
     }
     // A provisional answer's limit: the rows after it will not be read.
     const needed = Math.min(to, Math.max(from, request.rowLimit ?? to));
-    const spill = await spillOf(opened, source, group, groupIndex, groupStart, from, to, needed - from, targets, tuning, rules, () => progress.update(Math.round((source.size * from) / Math.max(1, opened.rows))));
+    const spill = await spillOf(opened, source, group, groupIndex, groupStart, from, to, needed - from, targets, tuning, rules, () => progress.update(Math.round(bytesPerRow * from)));
     const spilled = spill ? targets.flatMap((target) => (spill.columns.includes(target.column) ? [{ target, index: spill.columns.indexOf(target.column) }] : [])) : [];
     const columns = targets.filter((target) => !spill?.columns.includes(target.column)).map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning, target.buffers) }));
     try {
       // Rows of the group before a share's first row are passed over.
       if (from > groupStart) for (const { rows } of columns) await rows.skip(from - groupStart);
-      for (let first = from; first < to; first += batchRows) {
-        const n = Math.min(batchRows, to - first);
-        if (d > 0) values.fill(NaN, 0, n * d);
-        if (!label) labels.fill(-1, 0, n);
-        for (const { target, rows } of columns) await rows.read(n, (piece, at) => storePiece(target, piece, at, first));
-        for (const { target, index } of spilled) {
-          const { values: column, at } = await spill!.reader.rowsOf(index, first - from, n);
-          for (const slot of target.slots) for (let i = 0; i < n; i++) values[i * d + slot] = column[at + i]!;
-        }
-        request.onBatch({ rows: n, firstRow: first, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, labelTexts);
-        scanned += n;
-        progress.update(Math.round((source.size * (first + n)) / Math.max(1, opened.rows)));
-      }
+      await batch.readRows(columns, spilled, spill?.reader ?? null, from, to, request.onBatch, progress, bytesPerRow);
     } finally {
       await spill?.reader.close();
     }
@@ -433,10 +465,11 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
   }
   progress.finish();
 
+  const { nonNumeric, nonNumericExamples, lostPrecision } = batch;
   const notes = [...(inspection.notes ?? schemaNotes(opened.columns))];
-  const imprecise = features.filter((_, slot) => lostPrecision[slot] > 0).map((column) => column.name);
+  const imprecise = features.filter((_, slot) => lostPrecision[slot]! > 0).map((column) => column.name);
   if (imprecise.length > 0) {
-    const counts = features.map((column, slot) => (lostPrecision[slot] > 0 ? `${column.name}: ${lostPrecision[slot]}` : '')).filter((text) => text !== '');
+    const counts = features.map((column, slot) => (lostPrecision[slot]! > 0 ? `${column.name}: ${lostPrecision[slot]}` : '')).filter((text) => text !== '');
     notes.push({
       code: 'int64-precision',
       severity: 'warning',
@@ -444,7 +477,7 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
       columns: imprecise,
     });
   }
-  return { rows: only ? scanned : opened.rows, labels: labelTexts.slice(), nonNumeric, nonNumericExamples, raggedRows: 0, raggedExamples: [], notes };
+  return { rows: only ? batch.scanned : opened.rows, labels: batch.labelTexts.slice(), nonNumeric, nonNumericExamples, raggedRows: 0, raggedExamples: [], notes };
 }
 
 /**

@@ -51,6 +51,41 @@ export interface ColumnPiece {
   valueStart: number;
 }
 
+/** The typed arrays hyparquet decodes number columns into (INT64 aside: BigInt64Array, which needs converting). */
+export type NumberArray = Float64Array | Float32Array | Int32Array | Uint32Array;
+
+export const isNumberArray = (values: unknown): values is NumberArray =>
+  values instanceof Float64Array || values instanceof Float32Array || values instanceof Int32Array || values instanceof Uint32Array;
+
+/**
+ * The fast path of storing a piece as doubles: when every row of the piece has a value and the values
+ * (or the dictionary its indexes point into) are a number array, writes row i of the piece to
+ * out[(at + i) · stride + offset] and returns true; otherwise writes nothing and returns false, and
+ * the caller converts value by value (missing values, text, BigInt).
+ */
+export function copyNumbers(piece: ColumnPiece, out: Float64Array, at: number, stride: number, offset: number): boolean {
+  const { indexes, valueStart, rows } = piece;
+  const numbers = indexes ? piece.dictionary : piece.values;
+  if (piece.levels || !isNumberArray(numbers)) return false;
+  if (indexes) for (let i = 0; i < rows; i++) out[(at + i) * stride + offset] = numbers[indexes[valueStart + i]!]!;
+  else for (let i = 0; i < rows; i++) out[(at + i) * stride + offset] = numbers[valueStart + i]!;
+  return true;
+}
+
+/** Calls visit(row, value) for each row of a piece (null for a missing value), `first` being the row of its first. */
+export function forEachValue(piece: ColumnPiece, first: number, visit: (row: number, value: unknown) => void): void {
+  const { levels, levelStart, presentLevel, values, indexes, dictionary } = piece;
+  let next = piece.valueStart;
+  for (let i = 0; i < piece.rows; i++) {
+    if (levels && levels[levelStart + i] !== presentLevel) {
+      visit(first + i, null);
+      continue;
+    }
+    visit(first + i, indexes ? dictionary![indexes[next]] : values![next]);
+    next++;
+  }
+}
+
 type RowGroup = FileMetaData['row_groups'][number];
 type Decoder = Parameters<typeof readDataPage>[2];
 type PageHeader = ReturnType<typeof parquetHeader>;

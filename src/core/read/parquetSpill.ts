@@ -19,7 +19,7 @@
 import type { Compressors, FileMetaData } from 'hyparquet';
 import { getSchemaPath, isFlatColumn } from 'hyparquet/src/schema.js';
 import type { ByteSource } from '../source';
-import { ColumnBuffers, FlatColumnCursor, plainNumbers, type CursorTuning } from './parquetCursor';
+import { ColumnBuffers, copyNumbers, FlatColumnCursor, forEachValue, plainNumbers, type CursorTuning } from './parquetCursor';
 import { ParquetFeatureReader } from './parquetValues';
 import { ScratchUnavailable, type ScratchReader, type ScratchSpace, type SpillLimits } from './scratch';
 import type { CellRules } from './cellValue';
@@ -131,18 +131,8 @@ export async function writeSpill(
           let k = 0;
           while (k < n) {
             const piece = await cursor.next(n - k);
-            const { levels, levelStart, presentLevel, values, indexes, dictionary, valueStart } = piece;
-            const numbers = indexes ? dictionary : values;
-            if (!levels && (numbers instanceof Float64Array || numbers instanceof Float32Array || numbers instanceof Int32Array)) {
-              if (indexes) for (let i = 0; i < piece.rows; i++) window[k + i] = numbers[indexes[valueStart + i]!]!;
-              else for (let i = 0; i < piece.rows; i++) window[k + i] = numbers[valueStart + i]!;
-            } else {
-              let next = valueStart;
-              for (let i = 0; i < piece.rows; i++) {
-                if (levels && levels[levelStart + i] !== presentLevel) window[k + i] = NaN;
-                else window[k + i] = reader.valueOf(indexes ? dictionary![indexes[next++]!] : numbers![next++]);
-              }
-            }
+            // A missing value is NaN (reader.valueOf(null)), as the scan stores it.
+            if (!copyNumbers(piece, window, k, 1, 0)) forEachValue(piece, k, (row, value) => (window[row] = reader.valueOf(value)));
             k += piece.rows;
           }
           await writer.write((c * rows + done) * 8, bytes.subarray(0, n * 8));
