@@ -508,8 +508,9 @@ async function spillOf(
   const open = (): Promise<SpillReader | null> => SpillReader.open(space, name, columns.length, to - from);
   let reader = await open();
   if (!reader) {
+    const rows = { source, metadata: opened.metadata, group, groupStart, from, to, columns };
     const fail = (error: unknown, column: string, row: number): Error => columnError(error, source.name, column, row);
-    if (!(await writeSpill(space, name, source, opened.metadata, group, groupStart, from, to, columns, compressors, tuning, rules, check, fail))) return null;
+    if (!(await writeSpill(space, name, rows, { compressors, tuning, rules, check, columnError: fail }))) return null;
     reader = await open();
   }
   return reader ? { columns, reader } : null;

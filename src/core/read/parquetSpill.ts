@@ -83,28 +83,34 @@ export function spillName(source: ByteSource, group: number, from: number, to: n
   return `parquet-${fingerprint([source.name, String(source.size), ...columns].join('\u0000'))}-g${group}-r${from}-${to}.f64`;
 }
 
+/** What a spill holds: rows [from, to) of some columns of one row group (`groupStart` being the group's first row). */
+export interface SpillRows {
+  source: ByteSource;
+  metadata: FileMetaData;
+  group: RowGroup;
+  groupStart: number;
+  from: number;
+  to: number;
+  columns: readonly string[];
+}
+
+/** How a spill is written: `check` is called between windows (it throws to cancel); `columnError` turns a reader failure into the scan's DataError. */
+export interface SpillOptions {
+  compressors: Compressors;
+  tuning: CursorTuning;
+  rules: CellRules;
+  check: () => void;
+  columnError: (error: unknown, column: string, row: number) => Error;
+}
+
 /**
  * Decodes rows [from, to) of each column into the scratch file `name`: column i's rows at
  * doubles [i · rows, (i + 1) · rows). False when the scratch space cannot take it (the scan then
- * reads the rows as they are). `check` is called between windows (it throws to cancel);
- * `columnError` turns a reader failure into the scan's DataError.
+ * reads the rows as they are).
  */
-export async function writeSpill(
-  space: ScratchSpace,
-  name: string,
-  source: ByteSource,
-  metadata: FileMetaData,
-  group: RowGroup,
-  groupStart: number,
-  from: number,
-  to: number,
-  columns: readonly string[],
-  compressors: Compressors,
-  tuning: CursorTuning,
-  rules: CellRules,
-  check: () => void,
-  columnError: (error: unknown, column: string, row: number) => Error,
-): Promise<boolean> {
+export async function writeSpill(space: ScratchSpace, name: string, spill: SpillRows, options: SpillOptions): Promise<boolean> {
+  const { source, metadata, group, groupStart, from, to, columns } = spill;
+  const { compressors, tuning, rules, check, columnError } = options;
   let writer;
   try {
     writer = await space.create(name);
