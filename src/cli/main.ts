@@ -10,6 +10,7 @@ import type { Command, CommandIO } from './command';
 import { EXIT_BUG, EXIT_INTERRUPTED, EXIT_OK, EXIT_USAGE } from './command';
 import { COMMANDS } from './commands/index';
 import { commandHelp, programHelp } from './help';
+import { cancelOnSignals, INTERRUPTED_MESSAGE } from './interrupt';
 import { keepYoungGenerationSmall } from './youngGeneration';
 import { newScratchFolder, removeScratchFolder, useScratchFolder } from '../node/scratchFiles';
 
@@ -64,7 +65,7 @@ export function describeFailure(error: unknown): { text: string; code: number } 
     const help = error.command ? `scatterwise help ${error.command}` : 'scatterwise --help';
     return { text: `scatterwise: ${error.message}\n  See '${help}'.\n`, code: EXIT_USAGE };
   }
-  if (error instanceof CancelledError) return { text: 'scatterwise: interrupted.\n', code: EXIT_INTERRUPTED };
+  if (error instanceof CancelledError) return { text: INTERRUPTED_MESSAGE, code: EXIT_INTERRUPTED };
   const message = error instanceof Error ? `${error.name}: ${error.message}` : String(error);
   return {
     text: `scatterwise: unexpected error: ${message.split('\n')[0]}\n  This is a bug in scatterwise; please report it with the command you ran.\n`,
@@ -86,14 +87,12 @@ export async function runCli(argv: readonly string[], io: CommandIO): Promise<nu
 function main(): void {
   keepYoungGenerationSmall();
   // Spills of a Parquet file's huge row group (src/core/read/parquetSpill.ts), removed when the
-  // process ends (a signal cancels the analysis first: the process then exits as usual).
+  // process ends (a signal cancels the analysis first, a second exits at once: interrupt.ts).
   const scratchFolder = newScratchFolder();
   useScratchFolder(scratchFolder);
   process.once('exit', () => removeScratchFolder(scratchFolder));
   const abort = new AbortController();
-  const onSignal = (): void => abort.abort();
-  process.once('SIGINT', onSignal);
-  process.once('SIGTERM', onSignal);
+  cancelOnSignals(abort);
   const io: CommandIO = {
     stdout: (text) => process.stdout.write(text),
     stderr: (text) => process.stderr.write(text),
