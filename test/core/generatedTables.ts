@@ -3,7 +3,7 @@
  * features, labelled by fault type), from a seeded generator so every run sees the same bytes.
  * Each test plants the defect it checks on top of a clean table.
  */
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { memorySource } from '../../src/core/source';
@@ -66,9 +66,17 @@ export function sourceOf(text: string, name = 'pumps.csv'): ByteSource {
   return memorySource(name, new TextEncoder().encode(text));
 }
 
-/** Writes a file into a fresh folder under the system temporary directory. */
+/** Folders made by writeTemporary, removed when the test process exits. */
+const temporaryFolders: string[] = [];
+
+/** Writes a file into a fresh folder under the system temporary directory (removed when the test process exits). */
 export function writeTemporary(name: string, text: string): string {
   const folder = mkdtempSync(join(tmpdir(), 'scatterwise-test-'));
+  if (temporaryFolders.push(folder) === 1) {
+    process.once('exit', () => {
+      for (const made of temporaryFolders) rmSync(made, { recursive: true, force: true });
+    });
+  }
   const path = join(folder, name);
   writeFileSync(path, text);
   return path;
