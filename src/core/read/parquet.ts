@@ -212,7 +212,6 @@ function forEachRow(chunks: readonly ColumnData[], rowStart: number, rowEnd: num
   }
 }
 
-
 function schemaNotes(columns: ParquetColumn[]): ReaderNote[] {
   const notes: ReaderNote[] = [];
   const nested = columns.filter((column) => column.kind === 'nested').map((column) => column.name);
