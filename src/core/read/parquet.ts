@@ -306,13 +306,26 @@ class ParquetBatch {
   /** File rows read so far. */
   scanned = 0;
 
-  constructor(
-    private readonly d: number,
-    readonly batchRows: number,
-    private readonly hasLabel: boolean,
-    private readonly rules: CellRules,
-    private readonly reader: ParquetFeatureReader,
-  ) {
+  private readonly d: number;
+  private readonly batchRows: number;
+  private readonly hasLabel: boolean;
+  private readonly rules: CellRules;
+  private readonly reader: ParquetFeatureReader;
+  private readonly onBatch: ScanRequest['onBatch'];
+  private readonly progress: PassProgress;
+  /** The source's bytes per row, for progress by rows read. */
+  private readonly bytesPerRow: number;
+
+  constructor(scan: { d: number; batchRows: number; hasLabel: boolean; rules: CellRules; onBatch: ScanRequest['onBatch']; progress: PassProgress; bytesPerRow: number }) {
+    const { d, batchRows } = scan;
+    this.d = d;
+    this.batchRows = batchRows;
+    this.hasLabel = scan.hasLabel;
+    this.rules = scan.rules;
+    this.reader = new ParquetFeatureReader(scan.rules);
+    this.onBatch = scan.onBatch;
+    this.progress = scan.progress;
+    this.bytesPerRow = scan.bytesPerRow;
     this.values = new Float64Array(batchRows * d);
     this.labels = new Int32Array(batchRows);
     this.nonNumeric = new Array<number>(d).fill(0);
@@ -326,22 +339,19 @@ class ParquetBatch {
    */
   async readRows(
     columns: readonly { target: ScanTarget; rows: ColumnRows }[],
-    spilled: readonly { target: ScanTarget; index: number }[],
-    spill: SpillReader | null,
+    spill: { reader: SpillReader; columns: readonly { target: ScanTarget; index: number }[] } | null,
     from: number,
     to: number,
-    onBatch: ScanRequest['onBatch'],
-    progress: PassProgress,
-    bytesPerRow: number,
   ): Promise<void> {
-    const { values, labels, batchRows, d } = this;
+    const { values, labels, batchRows, d, onBatch, progress, bytesPerRow } = this;
+    const spilled = spill?.columns ?? [];
     for (let first = from; first < to; first += batchRows) {
       const n = Math.min(batchRows, to - first);
       if (d > 0) values.fill(NaN, 0, n * d);
       if (!this.hasLabel) labels.fill(-1, 0, n);
       for (const { target, rows } of columns) await rows.read(n, (piece, at) => this.storePiece(target, piece, at, first));
       for (const { target, index } of spilled) {
-        const { values: column, at } = await spill!.rowsOf(index, first - from, n);
+        const { values: column, at } = await spill!.reader.rowsOf(index, first - from, n);
         for (const slot of target.slots) for (let i = 0; i < n; i++) values[i * d + slot] = column[at + i]!;
       }
       onBatch({ rows: n, firstRow: first, values: values.subarray(0, n * d), labels: labels.subarray(0, n) }, this.labelTexts);
@@ -427,9 +437,9 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
   const features = plan.features.map(columnOf);
   const label = plan.label >= 0 ? columnOf(plan.label) : undefined;
   const needed = [...new Set([...(label ? [label.name] : []), ...features.map((column) => column.name)])];
-  const batch = new ParquetBatch(features.length, Math.max(1, tuning.batchRows), label !== undefined, rules, new ParquetFeatureReader(rules));
   const progress = new PassProgress(request.control, request.pass ?? 'rows', source.size);
   const bytesPerRow = source.size / Math.max(1, opened.rows);
+  const batch = new ParquetBatch({ d: features.length, batchRows: Math.max(1, tuning.batchRows), hasLabel: label !== undefined, rules, onBatch: request.onBatch, progress, bytesPerRow });
   const targets: ScanTarget[] = needed.map((column) => ({
     column,
     slots: features.flatMap((feature, slot) => (feature.name === column ? [slot] : [])),
@@ -456,7 +466,7 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
     try {
       // Rows of the group before a share's first row are passed over.
       if (from > groupStart) for (const { rows } of columns) await rows.skip(from - groupStart);
-      await batch.readRows(columns, spilled, spill?.reader ?? null, from, to, request.onBatch, progress, bytesPerRow);
+      await batch.readRows(columns, spill ? { reader: spill.reader, columns: spilled } : null, from, to);
     } finally {
       await spill?.reader.close();
     }
