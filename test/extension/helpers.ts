@@ -67,13 +67,7 @@ export function activeTabInput(): unknown {
   return vscode.window.tabGroups.activeTabGroup.activeTab?.input;
 }
 
-export async function waitUntil(condition: () => boolean, timeoutMs: number, what: string): Promise<void> {
-  const start = Date.now();
-  while (!condition()) {
-    if (Date.now() - start > timeoutMs) throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}`);
-    await new Promise((resolve) => setTimeout(resolve, 25));
-  }
-}
+export { waitUntil } from '../waitUntil';
 
 /** Asks the runner for a screenshot of the workbench; undefined when the host is not run by runInServer.mjs. */
 export async function screenshot(name: string): Promise<string | undefined> {
