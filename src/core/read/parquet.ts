@@ -459,14 +459,14 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
       continue;
     }
     // A provisional answer's limit: the rows after it will not be read.
-    const needed = Math.min(to, Math.max(from, request.rowLimit ?? to));
-    const spill = await spillOf(opened, source, group, groupIndex, groupStart, from, to, needed - from, targets, tuning, rules, () => progress.update(Math.round(bytesPerRow * from)));
-    const spilled = spill ? targets.flatMap((target) => (spill.columns.includes(target.column) ? [{ target, index: spill.columns.indexOf(target.column) }] : [])) : [];
+    const readTo = Math.min(to, Math.max(from, request.rowLimit ?? to));
+    const spill = await spillOf(opened, source, group, groupIndex, groupStart, from, to, readTo - from, targets, tuning, rules, () => progress.update(Math.round(bytesPerRow * from)));
+    const spilled = spill ? { reader: spill.reader, columns: targets.flatMap((target) => (spill.columns.includes(target.column) ? [{ target, index: spill.columns.indexOf(target.column) }] : [])) } : null;
     const columns = targets.filter((target) => !spill?.columns.includes(target.column)).map((target) => ({ target, rows: ColumnRows.open(opened, source, group, groupStart, target.column, tuning, target.buffers) }));
     try {
       // Rows of the group before a share's first row are passed over.
       if (from > groupStart) for (const { rows } of columns) await rows.skip(from - groupStart);
-      await batch.readRows(columns, spill ? { reader: spill.reader, columns: spilled } : null, from, to);
+      await batch.readRows(columns, spilled, from, to);
     } finally {
       await spill?.reader.close();
     }
