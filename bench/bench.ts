@@ -29,7 +29,7 @@ import { answerOf, checkAlternatives, commandFor, PYTHON, toolsFor, TOOL_NAMES, 
 import { benchmarksDocument } from './benchmarksDoc';
 import { describeMachine, machineMarkdown, median, summarize, tableMarkdown, targetsMarkdown, type Summary, type TableRun, type Target } from './benchReport';
 import type { FrameTimes } from './editor/frameTimes';
-import { kernelHalfWorker, measureKernel, writeKernelRows, type HalfTask, type KernelResult } from './kernel';
+import { kernelThread, measureKernel, writeKernelRows, type KernelResult, type KernelThreadData } from './kernel';
 import { measureCommand } from './measureChild';
 import { DEFAULT_SPILL_LIMITS } from '../src/core/read/scratch';
 
@@ -81,7 +81,7 @@ interface KernelPair {
 }
 
 async function main(): Promise<void> {
-  if (!isMainThread) return kernelHalfWorker((workerData as { kernelHalf: HalfTask }).kernelHalf);
+  if (!isMainThread) return kernelThread((workerData as { kernelThread: KernelThreadData }).kernelThread);
   const kind = argument('child');
   if (kind) return child(kind);
 
@@ -256,7 +256,7 @@ function runEditor(table: TableShape, rounds: number): EditorFigures | null {
 
 function kernelMarkdown(kernels: KernelPair[]): string {
   const lines = [
-    '**Moments update and fit from moments** (rows in memory; median of the rounds, each the median of three runs). "Steady": the rows go into an accumulator that already holds them once (its scatters\' memory touched, as in the bulk of a long pass, and as numpy\'s timed products reuse the memory of its untimed first one); "fresh": into a new accumulator, whose K scatters of d × d doubles are touched for the first time. Both include finishing the moments (and for two threads handing them over and merging them).',
+    '**Moments update and fit from moments** (rows in memory; median of the rounds, each the median of three runs). "Steady": the rows go into an accumulator that already holds them once (its scatters\' memory touched, as in the bulk of a long pass, and as numpy\'s timed products reuse the memory of its untimed first one); "fresh": into a new accumulator, whose K scatters of d × d doubles are touched for the first time. Both include finishing the moments (and for two threads handing them over and merging them). The two threads live for the whole measurement, as a fit\'s do, and claim shares of the rows as the parallel passes claim ranges of a file (large shares first, small ones last); their first split is not timed, as numpy\'s first product is not.',
     '',
     '| d | rows | scatterwise moments update s, one thread, steady | fresh | the same, two threads, steady | fresh | numpy X.T @ X s (all cores) | ratio (two threads, steady) | ratio (fresh) | solveLda s | whole fit from moments s |',
     '|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|',

@@ -2,7 +2,9 @@
  * The wide-table figures of the side-by-side benchmark, measured in a child process:
  *  - the moments update (MomentsAccumulator: per-class shift, blocks of rows, the blocked rank-k
  *    cross-product, Chan merges) over n rows of d features held in memory, in one thread and split
- *    over two (as the parallel pass 1 runs it), against numpy's X.T @ X on the very same rows
+ *    over two as the parallel pass 1 runs it (two threads that live for the whole measurement,
+ *    claiming shares of the rows as the passes claim ranges of a file; the first split untimed,
+ *    as numpy's first product is), against numpy's X.T @ X on the very same rows
  *    (bench/alternatives/cross_product.py reads the file written here). Measured two ways:
  *    "steady", into an accumulator that already holds the rows once, as the bulk of a long pass
  *    runs (its scatters' memory touched) and as numpy's timed products run (they reuse the memory
@@ -18,6 +20,7 @@ import { closeSync, existsSync, openSync, readFileSync, writeSync } from 'node:f
 import { Worker, parentPort } from 'node:worker_threads';
 import { simdAvailable } from '../src/core/crossProductKernel';
 import { solveLda } from '../src/core/lda';
+import { GUIDED_SHARES } from '../src/core/parallel/rowPasses';
 import { MomentsAccumulator, mergeMomentsInPlace, momentsBuffers, type Moments } from '../src/core/moments';
 import { fitMoments } from '../src/core/pipeline/fitMoments';
 import { resolveOptions } from '../src/core/pipeline/options';
@@ -41,10 +44,11 @@ export function writeKernelRows(path: string, n: number, d: number, classes: num
   closeSync(file);
 }
 
-function readRows(path: string, n: number, d: number, first = 0): Float64Array {
+/** The rows, on a SharedArrayBuffer (the split update's threads share them). */
+function readRows(path: string, n: number, d: number): Float64Array {
   const bytes = readFileSync(path);
-  const values = new Float64Array(n * d);
-  new Uint8Array(values.buffer).set(bytes.subarray(first * d * 8, (first + n) * d * 8));
+  const values = new Float64Array(new SharedArrayBuffer(n * d * 8));
+  new Uint8Array(values.buffer).set(bytes.subarray(0, n * d * 8));
   return values;
 }
 
@@ -61,11 +65,11 @@ export interface KernelResult {
   /** The same into a new accumulator (its memory touched for the first time). */
   momentsFreshSeconds: number;
   /**
-   * Median seconds of the steady update split over two worker threads, each started, holding its
-   * half (already accumulated once, which also warms the code up) before the clock starts; the
-   * clock covers the update, the moments handed back (as the parallel pass 1's workers hand them:
-   * finished accumulators, their scatters in shared memory, the small arrays transferred) and the
-   * merge in place, as the parallel pass 1 needs them.
+   * Median seconds of the steady update split over two worker threads (TwoThreads), each holding
+   * its half of the rows once before the clock starts; the threads claim shares of the rows as the
+   * parallel passes do (claimShare); the clock covers the update, the moments handed back (as the
+   * parallel pass 1's workers hand them: finished accumulators, their scatters in shared memory,
+   * the small arrays transferred) and the merge in place, as the parallel pass 1 needs them.
    */
   twoThreadSeconds: number;
   /** CPU seconds of the whole process (both workers and the merging thread) over that span: on a shared machine the cost of the split without the other load's waiting. */
@@ -77,32 +81,65 @@ export interface KernelResult {
   fitMomentsSeconds?: number;
 }
 
-export interface HalfTask {
-  path: string;
-  first: number;
+/** What each of the two worker threads of the split update is handed (workerData), all of it shared, not copied. */
+export interface KernelThreadData {
+  /** The n × d rows, row-major, and their class ids, on SharedArrayBuffers. */
+  values: Float64Array;
+  ids: Int32Array;
+  /** The next row not yet claimed by a thread (one Int32 on a SharedArrayBuffer). */
+  next: Int32Array;
   n: number;
   d: number;
   classes: number;
-  /** Whether the timed update goes into the warmed-up accumulator (steady) or a new one (fresh). */
-  steady: boolean;
+  /** The rows this thread adds before a steady run (its half: the rows the moments already hold). */
+  first: number;
+  count: number;
+}
+
+/** Main thread to worker: get ready for a run (steady or fresh), then go. */
+type KernelOrder = { prepare: 'steady' | 'fresh' } | 'go';
+
+/** The smallest share a thread claims: 2 MiB of rows, as the parallel passes' smallest text range (src/core/parallel/rowPasses.ts). */
+const MIN_SHARE_BYTES = 2 * 1024 * 1024;
+
+/**
+ * The next share of rows, [start, end), or null when all are claimed: guided self-scheduling as
+ * the parallel passes split a file (the rest over GUIDED_SHARES · threads, large shares first,
+ * small ones last, so that a thread slowed by the machine's other load takes fewer), claimed
+ * with a compare-and-swap on the shared counter.
+ */
+function claimShare(data: KernelThreadData): [number, number] | null {
+  const least = Math.max(1, Math.ceil(MIN_SHARE_BYTES / (8 * data.d)));
+  for (;;) {
+    const start = Atomics.load(data.next, 0);
+    if (start >= data.n) return null;
+    const end = Math.min(data.n, start + Math.max(least, Math.ceil((data.n - start) / (GUIDED_SHARES * 2))));
+    if (Atomics.compareExchange(data.next, 0, start, end) === start) return [start, end];
+  }
 }
 
 /**
- * In a worker thread started by twoThreads: reads its half of the rows, accumulates them once
- * (which warms the code up) and on 'go' accumulates them again (steady) or into a new accumulator
- * (fresh) and hands the moments back (MomentsAccumulator.finish: the scatters shared, not copied).
+ * In each of the two worker threads of the split update (twoThreads), for every run: on
+ * `prepare`, a steady run's accumulator takes the thread's half of the rows (untimed), a fresh
+ * run's is made on `go`; on `go` the thread claims shares of the rows until none is left, adds
+ * them, and hands the moments back (MomentsAccumulator.finish: the scatters shared, not copied).
  */
-export function kernelHalfWorker(task: HalfTask): void {
-  const values = readRows(task.path, task.n, task.d, task.first);
-  const ids = Int32Array.from({ length: task.n }, (_, i) => (task.first + i) % task.classes);
-  const labels = Array.from({ length: task.classes }, (_, k) => `class ${k + 1}`);
-  const features = Array.from({ length: task.d }, (_, j) => `feature_${j + 1}`);
-  const warm = warmUp(features, values, ids, task.n, labels);
-  parentPort!.postMessage('ready');
-  parentPort!.once('message', () => {
-    const accumulator = task.steady ? warm : new MomentsAccumulator(features);
-    accumulator.add(values, ids, task.n, labels);
-    const moments = accumulator.finish();
+export function kernelThread(data: KernelThreadData): void {
+  const labels = Array.from({ length: data.classes }, (_, k) => `class ${k + 1}`);
+  const features = Array.from({ length: data.d }, (_, j) => `feature_${j + 1}`);
+  let accumulator: MomentsAccumulator | null = null;
+  parentPort!.on('message', (order: KernelOrder) => {
+    if (order !== 'go') {
+      accumulator = order.prepare === 'steady' ? warmUp(features, data.values.subarray(data.first * data.d), data.ids.subarray(data.first), data.count, labels) : null;
+      parentPort!.postMessage('ready');
+      return;
+    }
+    const target = accumulator ?? new MomentsAccumulator(features);
+    for (let share = claimShare(data); share; share = claimShare(data)) {
+      const [start, end] = share;
+      target.add(data.values.subarray(start * data.d, end * data.d), data.ids.subarray(start, end), end - start, labels);
+    }
+    const moments = target.finish();
     parentPort!.postMessage(moments, momentsBuffers(moments));
   });
 }
@@ -118,46 +155,64 @@ function warmUp(features: string[], values: Float64Array, ids: Int32Array, n: nu
   return warm;
 }
 
-/** Seconds (wall and CPU) to accumulate the rows in two threads (one half each) and merge their moments. */
-function twoThreads(path: string, n: number, d: number, classes: number, steady: boolean): Promise<{ wall: number; cpu: number }> {
-  const half = Math.floor(n / 2);
-  const tasks: HalfTask[] = [
-    { path, first: 0, n: half, d, classes, steady },
-    { path, first: half, n: n - half, d, classes, steady },
-  ];
-  return new Promise<{ wall: number; cpu: number }>((resolve, reject) => {
-    const workers = tasks.map((task) => new Worker(__filename, { workerData: { kernelHalf: task } }));
-    let ready = 0;
-    let started = 0;
-    let used = process.cpuUsage();
-    const parts: Moments[] = [];
-    for (const worker of workers) {
-      worker.on('error', reject);
-      worker.on('message', (message: unknown) => {
-        if (message === 'ready') {
-          if (++ready === workers.length) {
-            started = performance.now();
-            used = process.cpuUsage();
-            for (const w of workers) w.postMessage('go');
-          }
-          return;
-        }
-        parts.push(message as Moments);
-        if (parts.length === workers.length) {
-          mergeMomentsInPlace(parts[0]!, parts[1]!);
-          const seconds = (performance.now() - started) / 1000;
-          const cpu = process.cpuUsage(used);
-          void Promise.all(workers.map((w) => w.terminate())).then(() => resolve({ wall: seconds, cpu: (cpu.user + cpu.system) / 1e6 }));
-        }
-      });
-    }
-  });
+/**
+ * The split update: two worker threads that live for the whole measurement, as the parallel
+ * passes' threads live for a fit, holding the rows once between them (shared memory). run()
+ * returns the seconds (wall and CPU) from `go` until the threads' moments are merged.
+ */
+class TwoThreads {
+  private readonly workers: Worker[];
+  private readonly next: Int32Array;
+
+  /** `values` and `ids` on SharedArrayBuffers. */
+  constructor(values: Float64Array, ids: Int32Array, n: number, d: number, classes: number) {
+    this.next = new Int32Array(new SharedArrayBuffer(4));
+    const half = Math.floor(n / 2);
+    this.workers = [0, half].map((first) => {
+      const data: KernelThreadData = { values, ids, next: this.next, n, d, classes, first, count: first === 0 ? half : n - half };
+      return new Worker(__filename, { workerData: { kernelThread: data } });
+    });
+  }
+
+  private all<T>(order: KernelOrder): Promise<T[]> {
+    return Promise.all(
+      this.workers.map(
+        (worker) =>
+          new Promise<T>((resolve, reject) => {
+            const fail = (error: Error): void => reject(error);
+            worker.once('error', fail);
+            worker.once('message', (message: T) => {
+              worker.off('error', fail);
+              resolve(message);
+            });
+            worker.postMessage(order);
+          }),
+      ),
+    );
+  }
+
+  async run(steady: boolean): Promise<{ wall: number; cpu: number }> {
+    await this.all<string>({ prepare: steady ? 'steady' : 'fresh' });
+    Atomics.store(this.next, 0, 0);
+    const started = performance.now();
+    const used = process.cpuUsage();
+    const parts = await this.all<Moments>('go');
+    mergeMomentsInPlace(parts[0]!, parts[1]!);
+    const seconds = (performance.now() - started) / 1000;
+    const cpu = process.cpuUsage(used);
+    return { wall: seconds, cpu: (cpu.user + cpu.system) / 1e6 };
+  }
+
+  close(): Promise<number[]> {
+    return Promise.all(this.workers.map((w) => w.terminate()));
+  }
 }
 
 /** Times the moments update (and with `fit` the fit from its moments); prints nothing. */
 export async function measureKernel(path: string, n: number, d: number, classes: number, fit: boolean): Promise<KernelResult> {
   const values = readRows(path, n, d);
-  const ids = Int32Array.from({ length: n }, (_, i) => i % classes);
+  const ids = new Int32Array(new SharedArrayBuffer(n * 4));
+  for (let i = 0; i < n; i++) ids[i] = i % classes;
   const labels = Array.from({ length: classes }, (_, k) => `class ${k + 1}`);
   const features = Array.from({ length: d }, (_, j) => `feature_${j + 1}`);
   warmUp(features, values, ids, n, labels).finish();
@@ -185,11 +240,18 @@ export async function measureKernel(path: string, n: number, d: number, classes:
   const two: number[] = [];
   const twoCpu: number[] = [];
   const twoFresh: number[] = [];
-  for (let round = 0; round < 3; round++) {
-    const split = await twoThreads(path, n, d, classes, true);
-    two.push(split.wall);
-    twoCpu.push(split.cpu);
-    twoFresh.push((await twoThreads(path, n, d, classes, false)).wall);
+  const threads = new TwoThreads(values, ids, n, d, classes);
+  try {
+    // Untimed, as numpy's first product is: every thread's code (the merge's too) warmed up.
+    await threads.run(true);
+    for (let round = 0; round < 3; round++) {
+      const split = await threads.run(true);
+      two.push(split.wall);
+      twoCpu.push(split.cpu);
+      twoFresh.push((await threads.run(false)).wall);
+    }
+  } finally {
+    await threads.close();
   }
   const result: KernelResult = {
     n,

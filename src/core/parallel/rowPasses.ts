@@ -51,7 +51,7 @@ export class ParallelFallback extends Error {
  * ranges first keep the per-range costs low; small ones last let the threads finish together
  * (a thread that takes the last 64 MiB range alone leaves the others idle for a second).
  */
-const GUIDED_SHARES = 4;
+export const GUIDED_SHARES = 4;
 const MIN_RANGE_BYTES = 2 * 1024 * 1024;
 const MAX_RANGE_BYTES = 64 * 1024 * 1024;
 
