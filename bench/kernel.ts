@@ -20,7 +20,7 @@ import { closeSync, existsSync, openSync, readFileSync, writeSync } from 'node:f
 import { Worker, parentPort } from 'node:worker_threads';
 import { simdAvailable } from '../src/core/crossProductKernel';
 import { solveLda } from '../src/core/lda';
-import { GUIDED_SHARES } from '../src/core/parallel/rowPasses';
+import { GUIDED_SHARES, MIN_RANGE_BYTES } from '../src/core/parallel/rowPasses';
 import { MomentsAccumulator, mergeMomentsInPlace, momentsBuffers, type Moments } from '../src/core/moments';
 import { fitMoments } from '../src/core/pipeline/fitMoments';
 import { resolveOptions } from '../src/core/pipeline/options';
@@ -99,17 +99,14 @@ export interface KernelThreadData {
 /** Main thread to worker: get ready for a run (steady or fresh), then go. */
 type KernelOrder = { prepare: 'steady' | 'fresh' } | 'go';
 
-/** The smallest share a thread claims: 2 MiB of rows, as the parallel passes' smallest text range (src/core/parallel/rowPasses.ts). */
-const MIN_SHARE_BYTES = 2 * 1024 * 1024;
-
 /**
  * The next share of rows, [start, end), or null when all are claimed: guided self-scheduling as
  * the parallel passes split a file (the rest over GUIDED_SHARES · threads, large shares first,
- * small ones last, so that a thread slowed by the machine's other load takes fewer), claimed
- * with a compare-and-swap on the shared counter.
+ * small ones last, so that a thread slowed by the machine's other load takes fewer; at least
+ * MIN_RANGE_BYTES of doubles), claimed with a compare-and-swap on the shared counter.
  */
 function claimShare(data: KernelThreadData): [number, number] | null {
-  const least = Math.max(1, Math.ceil(MIN_SHARE_BYTES / (8 * data.d)));
+  const least = Math.max(1, Math.ceil(MIN_RANGE_BYTES / (8 * data.d)));
   for (;;) {
     const start = Atomics.load(data.next, 0);
     if (start >= data.n) return null;
@@ -119,7 +116,7 @@ function claimShare(data: KernelThreadData): [number, number] | null {
 }
 
 /**
- * In each of the two worker threads of the split update (twoThreads), for every run: on
+ * In each of the two worker threads of the split update (TwoThreads), for every run: on
  * `prepare`, a steady run's accumulator takes the thread's half of the rows (untimed), a fresh
  * run's is made on `go`; on `go` the thread claims shares of the rows until none is left, adds
  * them, and hands the moments back (MomentsAccumulator.finish: the scatters shared, not copied).

@@ -52,7 +52,7 @@ export class ParallelFallback extends Error {
  * (a thread that takes the last 64 MiB range alone leaves the others idle for a second).
  */
 export const GUIDED_SHARES = 4;
-const MIN_RANGE_BYTES = 2 * 1024 * 1024;
+export const MIN_RANGE_BYTES = 2 * 1024 * 1024;
 const MAX_RANGE_BYTES = 64 * 1024 * 1024;
 
 /** Whether a parallel scan of this source can give the single-thread result (Parquet: see splitSource). */
