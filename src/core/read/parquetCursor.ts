@@ -152,6 +152,9 @@ export class ColumnBuffers {
   levels = new Uint8Array(0);
   indexes = new Int32Array(0);
   values: Float64Array | Float32Array | Int32Array | BigInt64Array | null = null;
+  /** A page decoded whole: its definition levels and dictionary indexes (it is read to its end before the next page is decoded). */
+  wholeLevels = new Uint8Array(0);
+  wholeIndexes = new Int32Array(0);
   /**
    * A large number dictionary's memory, for a cursor whose dictionaries are not kept (a spill
    * decodes one column after another: each takes the memory of the one before, which no one reads
@@ -529,7 +532,8 @@ export class FlatColumnCursor {
     let levels: Uint8Array | null = null;
     let present = data.num_values;
     if (this.presentLevel === 1) {
-      levels = new Uint8Array(data.num_values);
+      if (this.buffers.wholeLevels.length < data.num_values) this.buffers.wholeLevels = new Uint8Array(data.num_values);
+      levels = this.buffers.wholeLevels.subarray(0, data.num_values);
       readRleBitPackedHybrid(reader, 1, levels);
       present = 0;
       for (let i = 0; i < levels.length; i++) present += levels[i];
@@ -537,8 +541,10 @@ export class FlatColumnCursor {
     }
     if (data.encoding === 'PLAIN') return { rows: data.num_values, rowAt: 0, valueAt: 0, levels, values: convert(readPlain(reader, decoder.type, present, this.element.type_length), decoder), indexes: null };
     const width = view.getUint8(reader.offset++);
-    const indexes = new Int32Array(present);
+    if (this.buffers.wholeIndexes.length < present) this.buffers.wholeIndexes = new Int32Array(present);
+    const indexes = this.buffers.wholeIndexes.subarray(0, present);
     if (width) readRleBitPackedHybrid(reader, width, indexes, view.byteLength - reader.offset);
+    else indexes.fill(0);
     const size = this.dictionary?.length ?? 0;
     for (let i = 0; i < present; i++) if (indexes[i] >= size) throw new StreamDamaged(`a dictionary index ${indexes[i]} beyond the ${size} entries`);
     return { rows: data.num_values, rowAt: 0, valueAt: 0, levels, values: null, indexes };

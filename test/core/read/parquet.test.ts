@@ -315,6 +315,19 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
         }
       }
 
+      // Scans through one source that overlap in time (a new fit started while the one before winds
+      // down): a scan takes the read buffers that ended scans left on the source, so the two must not
+      // get the same ones. A whole scan first leaves one set; the two then run at once, each on half.
+      const overlapping = memorySource('large.parquet', bytes);
+      const tuning = { streamPageBytes: 0, readBytes: 1000, batchRows: 4096 };
+      await scanAll(bytes, 'large.parquet', inspection, features, tuning, undefined, overlapping);
+      const halves = await Promise.all([0, ROWS / 2].map((start) => scanAll(bytes, 'large.parquet', inspection, features, tuning, { start, end: start + ROWS / 2 }, overlapping)));
+      halves.forEach((run, h) => {
+        const offset = h * (ROWS / 2) * features.length;
+        const wrong = run.values.findIndex((value, i) => !Object.is(value, streamed.values[offset + i]));
+        assert.equal(wrong, -1, `half ${h + 1}, value ${wrong}: ${run.values[wrong]} vs ${streamed.values[offset + wrong]}`);
+      });
+
       // The number dictionaries one thread decoded, shared with another (through a structured clone,
       // as postMessage passes them): in shared memory, and the other's run reads the same values with them.
       const decoding = memorySource('large.parquet', bytes);
