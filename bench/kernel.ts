@@ -20,7 +20,7 @@ import { closeSync, existsSync, openSync, readFileSync, writeSync } from 'node:f
 import { Worker, parentPort } from 'node:worker_threads';
 import { simdAvailable } from '../src/core/crossProductKernel';
 import { solveLda } from '../src/core/lda';
-import { GUIDED_SHARES, MIN_RANGE_BYTES } from '../src/core/parallel/rowPasses';
+import { guidedRangeBytes } from '../src/core/parallel/rowPasses';
 import { MomentsAccumulator, mergeMomentsInPlace, momentsBuffers, type Moments } from '../src/core/moments';
 import { fitMoments } from '../src/core/pipeline/fitMoments';
 import { resolveOptions } from '../src/core/pipeline/options';
@@ -100,17 +100,17 @@ export interface KernelThreadData {
 type KernelOrder = { prepare: 'steady' | 'fresh' } | 'go';
 
 /**
- * The next share of rows, [start, end), or null when all are claimed: guided self-scheduling as
- * the parallel passes split a file (the rest over GUIDED_SHARES · threads, large shares first,
- * small ones last, so that a thread slowed by the machine's other load takes fewer; at least
- * MIN_RANGE_BYTES of doubles), claimed with a compare-and-swap on the shared counter.
+ * The next share of rows, [start, end), or null when all are claimed: as long as the parallel
+ * passes' next text range would be for the rest of the rows' doubles (guidedRangeBytes: large
+ * shares first, small ones last, so that a thread slowed by the machine's other load takes
+ * fewer), claimed with a compare-and-swap on the shared counter.
  */
 function claimShare(data: KernelThreadData): [number, number] | null {
-  const least = Math.max(1, Math.ceil(MIN_RANGE_BYTES / (8 * data.d)));
+  const rowBytes = 8 * data.d;
   for (;;) {
     const start = Atomics.load(data.next, 0);
     if (start >= data.n) return null;
-    const end = Math.min(data.n, start + Math.max(least, Math.ceil((data.n - start) / (GUIDED_SHARES * 2))));
+    const end = Math.min(data.n, start + Math.max(1, Math.ceil(guidedRangeBytes((data.n - start) * rowBytes, 2) / rowBytes)));
     if (Atomics.compareExchange(data.next, 0, start, end) === start) return [start, end];
   }
 }

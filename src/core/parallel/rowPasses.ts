@@ -51,9 +51,14 @@ export class ParallelFallback extends Error {
  * ranges first keep the per-range costs low; small ones last let the threads finish together
  * (a thread that takes the last 64 MiB range alone leaves the others idle for a second).
  */
-export const GUIDED_SHARES = 4;
-export const MIN_RANGE_BYTES = 2 * 1024 * 1024;
+const GUIDED_SHARES = 4;
+const MIN_RANGE_BYTES = 2 * 1024 * 1024;
 const MAX_RANGE_BYTES = 64 * 1024 * 1024;
+
+/** The length of the next text range when `rest` bytes are left to split among `workers` (see above). */
+export function guidedRangeBytes(rest: number, workers: number): number {
+  return Math.min(MAX_RANGE_BYTES, Math.max(MIN_RANGE_BYTES, Math.ceil(rest / (GUIDED_SHARES * Math.max(1, workers)))));
+}
 
 /** Whether a parallel scan of this source can give the single-thread result (Parquet: see splitSource). */
 export function canScanInParallel(scanner: RangeScanner | undefined, inspection: TableInspection, size: number): scanner is RangeScanner {
@@ -118,7 +123,7 @@ export async function splitAtRowStarts(source: ByteSource, workers: number, pref
   } else {
     for (let at = 0; ; ) {
       const rest = size - at;
-      const length = Math.min(MAX_RANGE_BYTES, Math.max(MIN_RANGE_BYTES, Math.ceil(rest / (GUIDED_SHARES * Math.max(1, workers)))));
+      const length = guidedRangeBytes(rest, workers);
       // A last piece smaller than the minimum joins the range before it.
       if (rest - length < MIN_RANGE_BYTES) break;
       at += length;
