@@ -128,6 +128,8 @@ export function openSecondPass(input: Omit<SecondPassInput, keyof SecondPassShar
   const ld = new Float64Array(k);
   const pc = new Float64Array(2);
   let scores = new Float64Array(0);
+  const wantScores = input.onScores !== undefined;
+  const { misclassifiedLimit, topFeatures } = input;
 
   // One share's state, set at the start of each scan.
   let assigner: FoldAssigner | null = null;
@@ -135,40 +137,37 @@ export function openSecondPass(input: Omit<SecondPassInput, keyof SecondPassShar
   let majority: CandidateCount;
   let confusion: number[][];
   let cvConfusion: number[][] | null;
-  let misclassified: FitReport['misclassified'];
+  // The misclassified rows listed, as numbers (the report's entries are made after the scan, out
+  // of the row loop): row, line (-1 when none), true and predicted class, posterior; grown as
+  // needed up to the limit (which may be large).
+  let listed = new Float64Array(5 * Math.min(misclassifiedLimit, 128));
   let misclassifiedTotal = 0;
   let sample: SampleCollector;
   let classOfId: number[] = [];
   let orderOfId: number[] = [];
   let pass: PassControl;
 
-  const onBatch = (batch: RowBatch, labels: readonly string[]): void => {
-    while (classOfId.length < labels.length) classOfId.push(classOfLabel.get(labels[classOfId.length]!) ?? -1);
-    while (orderOfId.length < labels.length) {
-      const id = orderOfId.length;
-      orderOfId.push((labelOrder ? labelOrder.get(labels[id]!) : appearanceOrder.get(id)) ?? -1);
-    }
-    let rows = batch.rows;
-    if (input.rowLimit !== null) rows = Math.max(0, Math.min(rows, input.rowLimit - batch.firstRow));
-    if (input.onScores && scores.length < rows * k) scores = new Float64Array(batch.rows * k);
-    if (!batch.lines) sample.hasLines = false;
-    const { values } = batch;
+  // The rows of a batch, in a function of their own: V8 compiles the loop while the first batch
+  // runs (on-stack replacement), and code after the loop in the same function would then be
+  // compiled before it ever ran, and deoptimized when it first did (each thread of a parallel
+  // pass, each pass: counted with --trace-deopt).
+  const scoreRows = (values: Float64Array, labelIds: Int32Array, lines: Int32Array | undefined, firstRow: number, rows: number): void => {
     for (let i = 0; i < rows; i++) {
       const offset = i * d;
-      const id = batch.labels[i]!;
+      const id = labelIds[i]!;
       let clean = id >= 0;
       for (let j = 0; clean && j < d; j++) {
         const v = values[offset + j]!;
         if (v !== v || v === Infinity || v === -Infinity) clean = false;
       }
       if (!clean) {
-        if (input.onScores) scores.fill(NaN, i * k, (i + 1) * k);
+        if (wantScores) scores.fill(NaN, i * k, (i + 1) * k);
         continue;
       }
       const truth = classOfId[id]!;
       for (let j = 0; j < d; j++) x[j] = values[offset + j]!; // a copy: no view allocated per row
       scoreRow(solution, x, ld);
-      if (input.onScores) scores.set(ld, i * k);
+      if (wantScores) scores.set(ld, i * k);
       majority.count(values, offset);
 
       // Log scores where the models give them: the posterior (a softmax) is needed only for
@@ -186,24 +185,59 @@ export function openSecondPass(input: Omit<SecondPassInput, keyof SecondPassShar
         logScores = false;
       }
       if (cvConfusion) cvConfusion[truth]![judged]! += 1;
-      const row = batch.firstRow + i;
-      const line = batch.lines?.[i];
+      const row = firstRow + i;
+      const line = lines === undefined ? undefined : lines[i];
       if (judged !== truth) {
-        misclassifiedTotal++;
-        if (misclassified.length < input.misclassifiedLimit) {
-          if (logScores) softmaxInPlace(posterior, K);
-          const entry: FitReport['misclassified'][number] = { row, label: solution.labels[truth]!, predicted: solution.labels[judged]!, posterior: posterior[judged]! };
-          if (line !== undefined) entry.line = line;
-          misclassified.push(entry);
-        }
+        if (misclassifiedTotal++ < misclassifiedLimit) listMisclassified(row, line, truth, judged, logScores);
       }
 
       sample.total++;
       if (sampler.take(truth)) {
         pcaScoreRow(pca, x, pc);
-        sample.add(row, line, truth, ld, pc, values, offset, input.topFeatures);
+        sample.add(row, line, truth, ld, pc, values, offset, topFeatures);
       }
     }
+  };
+
+  const listMisclassified = (row: number, line: number | undefined, truth: number, judged: number, logScores: boolean): void => {
+    if (logScores) softmaxInPlace(posterior, K);
+    const at = 5 * (misclassifiedTotal - 1);
+    if (at === listed.length) {
+      const grown = new Float64Array(Math.min(2 * listed.length, 5 * misclassifiedLimit));
+      grown.set(listed);
+      listed = grown;
+    }
+    listed[at] = row;
+    listed[at + 1] = line === undefined ? -1 : line;
+    listed[at + 2] = truth;
+    listed[at + 3] = judged;
+    listed[at + 4] = posterior[judged]!;
+  };
+
+  const misclassifiedList = (): FitReport['misclassified'] =>
+    Array.from({ length: Math.min(misclassifiedTotal, misclassifiedLimit) }, (_, i) => {
+      const at = 5 * i;
+      const entry: FitReport['misclassified'][number] = {
+        row: listed[at]!,
+        label: solution.labels[listed[at + 2]!]!,
+        predicted: solution.labels[listed[at + 3]!]!,
+        posterior: listed[at + 4]!,
+      };
+      if (listed[at + 1]! >= 0) entry.line = listed[at + 1]!;
+      return entry;
+    });
+
+  const onBatch = (batch: RowBatch, labels: readonly string[]): void => {
+    while (classOfId.length < labels.length) classOfId.push(classOfLabel.get(labels[classOfId.length]!) ?? -1);
+    while (orderOfId.length < labels.length) {
+      const id = orderOfId.length;
+      orderOfId.push((labelOrder ? labelOrder.get(labels[id]!) : appearanceOrder.get(id)) ?? -1);
+    }
+    let rows = batch.rows;
+    if (input.rowLimit !== null) rows = Math.max(0, Math.min(rows, input.rowLimit - batch.firstRow));
+    if (input.onScores && scores.length < rows * k) scores = new Float64Array(batch.rows * k);
+    if (!batch.lines) sample.hasLines = false;
+    scoreRows(batch.values, batch.labels, batch.lines, batch.firstRow, rows);
     if (input.onScores && rows > 0) input.onScores({ firstRow: batch.firstRow, rows, k, scores: scores.subarray(0, rows * k) });
     if (input.rowLimit !== null && batch.firstRow + batch.rows >= input.rowLimit) pass.stop();
   };
@@ -215,7 +249,6 @@ export function openSecondPass(input: Omit<SecondPassInput, keyof SecondPassShar
     majority = new CandidateCount(input.majorityCandidates);
     confusion = square(K);
     cvConfusion = crossValidator.kind === 'none' ? null : square(K);
-    misclassified = [];
     misclassifiedTotal = 0;
     sample = new SampleCollector(plotAxes, input.topFeatures.length);
     // The scan's label ids are its own.
@@ -238,7 +271,7 @@ export function openSecondPass(input: Omit<SecondPassInput, keyof SecondPassShar
     return {
       confusion,
       crossValidatedConfusion: cvConfusion,
-      misclassified,
+      misclassified: misclassifiedList(),
       misclassifiedTotal,
       sample: input.packSample ? unpackSamples([]) : unpackSamples([packed]),
       ...(input.packSample ? { packedSample: packed } : {}),
