@@ -49,22 +49,32 @@ export function openPassJob(source: ByteSource, job: PassJob): PassJobRunner {
 /**
  * Counts the used rows of each label (firstPass hands every used row to its duplicate sink) and
  * records the value hashes of the first `budget` of them, for the duplicate check that the
- * coordinator replays in file order.
+ * coordinator replays in file order. One recorder serves all of a worker's ranges (`start` begins
+ * each): its arrays are kept, and the row loop that calls `add` sees the same objects in every
+ * range, so a later range does not first take a path (a new label's counter, a larger record)
+ * that V8 compiled the loop without.
  */
 class UsedRowRecorder {
+  /** Used rows by the range's label id (zeroed at each start). */
   readonly usedById: number[] = [];
   private count = 0;
+  private budget = 0;
   private hashes = new Uint32Array(0);
   private labels = new Int32Array(0);
   private rows = new Int32Array(0);
   private lines = new Int32Array(0);
   private readonly hash = new Uint32Array(2);
 
-  constructor(private readonly budget: number) {}
+  start(budget: number): void {
+    this.budget = budget;
+    this.count = 0;
+    this.usedById.fill(0);
+  }
 
   add(label: number, values: Float64Array, offset: number, d: number, row: number, line: number | undefined): void {
-    while (this.usedById.length <= label) this.usedById.push(0);
-    this.usedById[label]! += 1;
+    const used = this.usedById;
+    while (used.length <= label) used.push(0);
+    used[label]! += 1;
     const n = this.count;
     if (n >= this.budget) return;
     if (n === this.rows.length) this.grow(Math.min(this.budget, Math.max(1024, 2 * n)));
@@ -89,6 +99,7 @@ class UsedRowRecorder {
     }
   }
 
+  /** This range's record (copies: the arrays serve the next range). */
   record(): FirstRangePart['duplicates'] {
     const n = this.count;
     return { hashes: this.hashes.slice(0, 2 * n), labels: this.labels.slice(0, n), rows: this.rows.slice(0, n), lines: this.lines.slice(0, n) };
@@ -99,9 +110,10 @@ function firstJob(source: ByteSource, job: FirstPassJob): PassJobRunner {
   const moments = new MomentsAccumulator(job.columns.featureNames);
   // Opened once for all the worker's ranges (see openFirstPass).
   const scanShare = openFirstPass(source, job.inspection, { ...job.columns, moments: true, into: { moments } });
+  const recorder = new UsedRowRecorder();
   return {
     async scan(task, control): Promise<FirstRangePart> {
-      const recorder = new UsedRowRecorder(task.duplicateBudget ?? 0);
+      recorder.start(task.duplicateBudget ?? 0);
       const pass = await scanShare({ ...share(task), duplicateSink: recorder }, control);
       return {
         labels: pass.labels,

@@ -145,17 +145,14 @@ export function openFirstPass(
     blockRows = 0;
   };
 
-  const onBatch = (batch: RowBatch, dictionary: readonly string[]): void => {
-    labels = dictionary;
-    const { values } = batch;
-    for (let i = 0; i < batch.rows; i++) {
-      const row = batch.firstRow + i;
-      if (rowLimit !== null && row >= rowLimit) {
-        pass.stop();
-        break;
-      }
-      rows = row + 1;
-      const label = batch.labels[i]!;
+  // Rows [from, to) of a batch until the block is full; returns the next row's index. The loop is
+  // a function of its own, with the batch's arrays as arguments and the block flushed by the caller,
+  // for the reason openSecondPass gives for its scoreRows.
+  const checkRows = (values: Float64Array, labelIds: Int32Array, lines: Int32Array | undefined, firstRow: number, from: number, to: number): number => {
+    let i = from;
+    for (; i < to && blockRows < BLOCK_ROWS; i++) {
+      const row = firstRow + i;
+      const label = labelIds[i]!;
       let missing = label < 0;
       if (missing) labelMissing++;
       let infinite = false;
@@ -204,10 +201,23 @@ export function openFirstPass(
         blockFolds[blockRows] = assigner.foldOf(order);
       }
       blockRows++;
-      if (blockRows === BLOCK_ROWS) flush();
-      duplicateSink.add(label, values, offset, d, row, batch.lines?.[i]);
+      duplicateSink.add(label, values, offset, d, row, lines === undefined ? undefined : lines[i]);
       majority.vote(values, offset);
     }
+    return i;
+  };
+
+  const onBatch = (batch: RowBatch, dictionary: readonly string[]): void => {
+    labels = dictionary;
+    // Rows from the limit on are left out, and the pass stops at the first of them.
+    const end = rowLimit !== null ? Math.max(0, Math.min(batch.rows, rowLimit - batch.firstRow)) : batch.rows;
+    const { values, labels: labelIds, lines, firstRow } = batch;
+    for (let i = 0; i < end; ) {
+      i = checkRows(values, labelIds, lines, firstRow, i, end);
+      if (blockRows === BLOCK_ROWS) flush();
+    }
+    if (end > 0) rows = firstRow + end;
+    if (end < batch.rows) pass.stop();
   };
 
   return async (share, control, limit = null) => {

@@ -16,14 +16,16 @@ export class MajorityVote {
 
   /** Pass 1: one row, `values[offset .. offset + d)`. */
   vote(values: Float64Array, offset: number): void {
-    const d = this.candidates.length;
+    // Each row reads and writes the same arrays whatever the branch: a store made only in a branch
+    // first taken after V8 optimised the row loop would deoptimize it (no feedback for the store yet).
+    const { candidates, votes } = this;
+    const d = candidates.length;
     for (let j = 0; j < d; j++) {
       const v = values[offset + j]!;
-      if (this.votes[j] === 0) {
-        this.candidates[j] = v;
-        this.votes[j] = 1;
-      } else if (this.candidates[j] === v) this.votes[j]! += 1;
-      else this.votes[j]! -= 1;
+      const held = votes[j]!;
+      const same = candidates[j] === v;
+      candidates[j] = held === 0 ? v : candidates[j]!;
+      votes[j] = held === 0 ? 1 : held + (same ? 1 : -1);
     }
   }
 }
@@ -57,7 +59,9 @@ export class CandidateCount {
   }
 
   count(values: Float64Array, offset: number): void {
-    const d = this.candidates.length;
-    for (let j = 0; j < d; j++) if (values[offset + j] === this.candidates[j]) this.counts[j]! += 1;
+    const { candidates, counts } = this;
+    const d = candidates.length;
+    // No store in a branch (see MajorityVote.vote).
+    for (let j = 0; j < d; j++) counts[j]! += values[offset + j] === candidates[j] ? 1 : 0;
   }
 }
