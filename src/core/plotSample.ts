@@ -49,7 +49,13 @@ export function allocatePlotQuota(counts: readonly number[], budget: number): nu
 
 /** Streams the decision "is this row in the sample?" for rows given in file order. */
 export class PlotSampler {
-  private readonly seen: number[];
+  /**
+   * Per class, (j · quota) mod count for the class's next used row j: row j is taken when
+   * ⌊(j + 1)·q / n⌋ > ⌊j·q / n⌋, that is when this remainder plus q reaches n (q < n). Kept as the
+   * remainder, the test needs no product, which overflows 32 bits (and deoptimized the row loop
+   * V8 had compiled with small-integer arithmetic) once j·q passes 2³¹.
+   */
+  private readonly rest: Float64Array;
 
   /** `start`: used rows of each class before the first row given (a scan of a later part of the file). */
   constructor(
@@ -57,16 +63,19 @@ export class PlotSampler {
     readonly quota: readonly number[],
     start?: readonly number[],
   ) {
-    this.seen = counts.map((_, c) => start?.[c] ?? 0);
+    // Exact: start · quota stays far below 2⁵³.
+    // A typed array: a plain array's map would depend on how its first values were represented.
+    this.rest = Float64Array.from(counts, (n, c) => (n > 0 ? ((start?.[c] ?? 0) * quota[c]!) % n : 0));
   }
 
   /** Call once per used row of class `c`, in file order. */
   take(c: number): boolean {
-    const j = this.seen[c]!;
-    this.seen[c] = j + 1;
     const n = this.counts[c]!;
     const q = this.quota[c]!;
     if (q >= n) return true;
-    return Math.floor(((j + 1) * q) / n) > Math.floor((j * q) / n);
+    const reached = this.rest[c]! + q;
+    const taken = reached >= n;
+    this.rest[c] = reached - (taken ? n : 0); // the subtraction made on every row, not only in a branch
+    return taken;
   }
 }

@@ -55,4 +55,23 @@ describe('plot sample', () => {
     const firstHalf = first.filter((row) => row < classes.length / 2 && classes[row] === 0).length;
     assert.ok(Math.abs(firstHalf - quota[0]! / 2) <= 0.05 * quota[0]!, `${firstHalf} of ${quota[0]}`);
   });
+
+  it('takes row j of a class exactly when ⌊(j+1)q/n⌋ > ⌊jq/n⌋, past 2³¹ for j·q, and a sampler started at a later row continues the same draw', () => {
+    // Systematic sampling's rule, written out with BigInt (exact whatever the size).
+    const n = 3_000_000;
+    const q = 4_999;
+    const rule = (j: number): boolean => (BigInt(j + 1) * BigInt(q)) / BigInt(n) > (BigInt(j) * BigInt(q)) / BigInt(n);
+    const whole = new PlotSampler([n], [q]);
+    const split = 2_500_001; // j·q ≈ 1.25e10 from here on
+    let later: PlotSampler | null = null;
+    let taken = 0;
+    for (let j = 0; j < n; j++) {
+      if (j === split) later = new PlotSampler([n], [q], [split]);
+      const take = whole.take(0);
+      if (take) taken++;
+      if (later) assert.equal(later.take(0), take, `row ${j}: the later sampler`);
+      if (j % 997 === 0 || take) assert.equal(take, rule(j), `row ${j}`);
+    }
+    assert.equal(taken, q);
+  });
 });
