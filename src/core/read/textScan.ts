@@ -195,25 +195,44 @@ class DelimitedTextScanner {
     return this.summary();
   }
 
-  /** Parses the buffered rows; true when the scan is complete (range end reached). */
+  /**
+   * Parses the buffered rows; true when the scan is complete (range end reached). The row loop is
+   * parseRows; storing the position and flushing a full batch happen here, out of it: V8 optimises
+   * the loop while it runs the first buffer (on-stack replacement), and code in the loop's function
+   * that first ran after that had no type feedback and deoptimized the loop (once per thread and
+   * pass, or at every buffer for code after the loop).
+   */
   private parseBuffered(): boolean {
-    const buffer = this.buffer;
+    const stop = this.stopAt - this.bufferOffset;
+    const limit = Math.min(this.bufferEnd, stop);
     let p = this.position;
-    while (p < this.bufferEnd) {
-      if (this.bufferOffset + p >= this.stopAt) {
-        this.position = p;
-        return true;
-      }
+    for (;;) {
+      p = this.parseRows(p, limit);
+      if (this.batchCount !== this.labels.length) break;
+      this.flush();
+    }
+    this.position = p;
+    return p >= stop;
+  }
+
+  /**
+   * Rows starting before `limit` (the buffer's end or the range's), until the batch is full or a
+   * row needs more bytes than are buffered: the position after the last row parsed.
+   */
+  private parseRows(p: number, limit: number): number {
+    const buffer = this.buffer;
+    const capacity = this.labels.length;
+    while (p < limit && this.batchCount < capacity) {
       const blank = isBlankLine(buffer, p, this.bufferEnd + 1);
       if (blank > 0) {
-        if (p + blank - 1 === this.bufferEnd && !this.eof) break;
+        if (p + blank - 1 === this.bufferEnd && !this.eof) return p;
         this.line++;
         p += blank;
         continue;
       }
       if (this.comment !== undefined && isCommentLine(buffer, p, this.comment)) {
         const lineFeed = buffer.indexOf(LINE_FEED, p);
-        if (lineFeed === this.bufferEnd && !this.eof) break;
+        if (lineFeed === this.bufferEnd && !this.eof) return p;
         this.line++;
         p = lineFeed + 1;
         continue;
@@ -224,11 +243,10 @@ class DelimitedTextScanner {
         next = this.fastRow(p);
         if (next === ODD_ROW) next = this.oddRow(p);
       }
-      if (next === NEED_MORE) break;
+      if (next === NEED_MORE) return p;
       p = next;
     }
-    this.position = p;
-    return false;
+    return p;
   }
 
   /** Whether a missing token, trimmed as cells are, follows the number grammar (then it must win over the number shortcut). */
@@ -384,8 +402,7 @@ class DelimitedTextScanner {
       const text = this.tally.wantsExample(slot) ? this.decoder.decode(this.buffer.subarray(this.pendingText[3 * i + 1], this.pendingText[3 * i + 2])) : '';
       this.tally.nonNumericCell(slot, row, line, text);
     }
-    this.batchCount = n + 1;
-    if (this.batchCount === this.labels.length) this.flush();
+    this.batchCount = n + 1; // a full batch is flushed by parseBuffered, before the next row
   }
 
   private ragged(row: number, line: number, fields: number, text: string): void {
