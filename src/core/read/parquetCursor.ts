@@ -16,7 +16,7 @@
  * nested-list assembly (assembleLists), which took about half the time of a scan (DuckDB output,
  * whose columns are nullable), and it decodes a column chunk at once. Nested columns are left to it.
  */
-import type { CompressionCodec, Compressors, DecodedArray, FileMetaData, SchemaElement } from 'hyparquet';
+import type { CompressionCodec, Compressors, DecodedArray, Encoding, FileMetaData, SchemaElement } from 'hyparquet';
 import { parquetHeader } from 'hyparquet/src/column.js';
 import { convert, convertWithDictionary, DEFAULT_PARSERS } from 'hyparquet/src/convert.js';
 import { decompressPage, readDataPage, readDataPageV2 } from 'hyparquet/src/datapage.js';
@@ -510,7 +510,7 @@ export class FlatColumnCursor {
     const decoder = this.decoder;
     if (header.type === 'DATA_PAGE_V2' && header.data_page_header_v2) {
       const { definitionLevels, dataPage } = readDataPageV2(compressed, header, decoder);
-      const values = convertWithDictionary(dataPage, this.dictionary ?? undefined, header.data_page_header_v2.encoding, decoder);
+      const values = this.withDictionary(dataPage, header.data_page_header_v2.encoding);
       return this.wholePage(header.data_page_header_v2.num_rows, definitionLevels, values, null);
     }
     const data = header.data_page_header;
@@ -520,7 +520,7 @@ export class FlatColumnCursor {
     const handled = this.presentLevel <= 1 && (this.presentLevel === 0 || data.definition_level_encoding === 'RLE') && decoder.type !== 'BOOLEAN' && (data.encoding === 'PLAIN' || (dictionaryIndexes && this.dictionary !== null));
     if (!handled) {
       const { definitionLevels, dataPage } = readDataPage(page, data, decoder);
-      return this.wholePage(data.num_values, definitionLevels, convertWithDictionary(dataPage, this.dictionary ?? undefined, data.encoding, decoder), null);
+      return this.wholePage(data.num_values, definitionLevels, this.withDictionary(dataPage, data.encoding), null);
     }
     const view = new DataView(page.buffer, page.byteOffset, page.byteLength);
     const reader = { view, offset: 0 };
@@ -543,6 +543,16 @@ export class FlatColumnCursor {
     const beyond = firstIndexBeyond(indexes, present, size);
     if (beyond >= 0) throw new StreamDamaged(`a dictionary index ${indexes[beyond]} beyond the ${size} entries`);
     return { rows: data.num_values, rowAt: 0, valueAt: 0, levels, values: null, indexes };
+  }
+
+  /** A page's values through hyparquet, its dictionary indexes checked first (hyparquet maps an index past the end to undefined). */
+  private withDictionary(dataPage: DecodedArray, encoding: Encoding): DecodedArray {
+    const dictionary = this.dictionary ?? undefined;
+    if (dictionary && encoding.endsWith('_DICTIONARY')) {
+      const beyond = firstIndexBeyond(dataPage as ArrayLike<number>, dataPage.length, dictionary.length);
+      if (beyond >= 0) throw new StreamDamaged(`a dictionary index ${String(dataPage[beyond])} beyond the ${dictionary.length} entries`);
+    }
+    return convertWithDictionary(dataPage, dictionary, encoding, this.decoder);
   }
 
   private wholePage(rows: number, definitionLevels: ArrayLike<number> | undefined, values: DecodedArray, indexes: Int32Array | null): WholePage {
@@ -578,7 +588,7 @@ function indexBound(indexes: Int32Array, count: number): number {
 }
 
 /** The first of the first `count` dictionary indexes not below `size`, or -1. */
-function firstIndexBeyond(indexes: Int32Array, count: number, size: number): number {
+function firstIndexBeyond(indexes: ArrayLike<number>, count: number, size: number): number {
   for (let i = 0; i < count; i++) if (indexes[i]! >= size) return i;
   return -1;
 }

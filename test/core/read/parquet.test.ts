@@ -5,6 +5,7 @@
  */
 import { strict as assert } from 'node:assert';
 import { parquetMetadata } from 'hyparquet';
+import { parquetHeader } from 'hyparquet/src/column.js';
 import { parquetWriteBuffer } from 'hyparquet-writer';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -30,6 +31,31 @@ const loadFixture = (name: string): { bytes: Uint8Array; expected: Expected } =>
   bytes: new Uint8Array(readFileSync(join(FIXTURES, `${name}.parquet`))),
   expected: JSON.parse(readFileSync(join(FIXTURES, `${name}.expected.json`), 'utf8')) as Expected,
 });
+
+/**
+ * A copy of a Parquet file whose dictionary page at `headerAt` says it holds 1 entry instead of 4:
+ * the data page's indexes 1-3 then point past it. The count is a zigzag varint in the page header
+ * (4 is the byte 8, 1 the byte 2); the byte is found by trying each and reading the header back.
+ */
+function shrinkDictionary(bytes: Uint8Array, headerAt: number): Uint8Array {
+  const header = (candidate: Uint8Array) => parquetHeader({ view: new DataView(candidate.buffer, candidate.byteOffset, candidate.byteLength), offset: headerAt });
+  const before = header(bytes);
+  assert.equal(before.dictionary_page_header?.num_values, 4);
+  for (let at = headerAt; at < headerAt + 64; at++) {
+    if (bytes[at] !== 8) continue;
+    const damaged = bytes.slice();
+    damaged[at] = 2;
+    const after = header(damaged);
+    if (after.dictionary_page_header?.num_values === 1 && after.compressed_page_size === before.compressed_page_size) return damaged;
+  }
+  throw new Error('no dictionary count byte found');
+}
+
+/** The error a dictionary index past the dictionary gives, for column `column` of damaged.parquet. */
+const indexBeyond =
+  (column: string) =>
+  (error: unknown): boolean =>
+    error instanceof DataError && error.code === 'parquet-invalid' && new RegExp(`damaged\\.parquet: column ${column} cannot be decoded from row 0 on \\(a dictionary index [1-3] beyond the 1 entries\\)`).test(error.message);
 
 /** What a cell of the expected JSON means as a feature: DECIMAL and BIGINT come as decimal text. */
 function expectedFeature(value: number | string | boolean | null): number {
@@ -189,6 +215,31 @@ describe('parquet', function () {
       await rejects(content, /footer cannot be decoded/);
     });
 
+    it('a dictionary index beyond the dictionary (data pages v2), read streamed and whole', async () => {
+      // A dictionary-encoded column of 4 values written by hyparquet-writer (data pages v2), uncompressed.
+      const rows = 200;
+      const written = new Uint8Array(
+        parquetWriteBuffer({
+          columnData: [
+            { name: 'x', data: Float64Array.from({ length: rows }, (_, i) => 1.5 + (i % 4)), type: 'DOUBLE' },
+            { name: 'fault', data: Array.from({ length: rows }, (_, i) => (i % 2 ? 'seal' : 'bearing')), type: 'STRING' },
+          ],
+          codec: 'UNCOMPRESSED',
+        }),
+      );
+      const chunk = parquetMetadata(written.buffer).row_groups[0]!.columns[0]!.meta_data!;
+      assert.deepEqual(chunk.encodings, ['PLAIN', 'RLE_DICTIONARY']);
+      const damaged = shrinkDictionary(written, Number(chunk.dictionary_page_offset));
+      const inspection = await inspectTable(memorySource('x.parquet', written), { format: 'parquet' });
+      // The first look at the column (inspection) reads the page already; a scan reads it again.
+      await assert.rejects(inspectTable(memorySource('damaged.parquet', damaged), { format: 'parquet' }), indexBeyond('x'));
+      for (const tuning of [STREAMED, {}]) {
+        await assert.rejects(scanParquet({ source: memorySource('damaged.parquet', damaged), inspection, plan: { label: 1, features: [0] }, onBatch: () => {} }, { ...DEFAULT_PARQUET_TUNING, ...tuning }), indexBeyond('x'));
+        const { values } = await scanAll(written, 'x.parquet', inspection, ['x'], tuning);
+        assert.deepEqual(values.slice(0, 8), [1.5, 2.5, 3.5, 4.5, 1.5, 2.5, 3.5, 4.5]);
+      }
+    });
+
     it('damaged column data behind an intact footer', async () => {
       const damaged = bytes.slice();
       damaged.fill(0xa5, 4, 4000);
@@ -344,6 +395,25 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
       );
     });
   }
+
+  it('a dictionary index beyond the dictionary (DuckDB, data pages v1), read streamed and whole', async () => {
+    const { DuckDBInstance } = await import('@duckdb/node-api');
+    const connection = await (await DuckDBInstance.create(':memory:')).connect();
+    const path = join(folder, 'four-values.parquet');
+    await connection.run(`COPY (SELECT (1.5 + i % 4)::DOUBLE AS x, ['seal', 'bearing'][i % 2 + 1] AS fault FROM range(5000) t(i)) TO '${path}' (FORMAT parquet, COMPRESSION uncompressed)`);
+    connection.closeSync();
+    const written = new Uint8Array(readFileSync(path));
+    const chunk = parquetMetadata(written.buffer.slice(written.byteOffset, written.byteOffset + written.byteLength)).row_groups[0]!.columns[0]!.meta_data!;
+    assert.ok(chunk.encodings.includes('RLE_DICTIONARY') || chunk.encodings.includes('PLAIN_DICTIONARY'), `encodings ${chunk.encodings.join(', ')}`);
+    const damaged = shrinkDictionary(written, Number(chunk.dictionary_page_offset));
+    const inspection = await inspectTable(memorySource('x.parquet', written), { format: 'parquet' });
+    await assert.rejects(inspectTable(memorySource('damaged.parquet', damaged), { format: 'parquet' }), indexBeyond('x'));
+    for (const tuning of [{ streamPageBytes: 0, readBytes: 1000 }, { streamPageBytes: Infinity }]) {
+      await assert.rejects(scanParquet({ source: memorySource('damaged.parquet', damaged), inspection, plan: { label: 1, features: [0] }, onBatch: () => {} }, { ...DEFAULT_PARQUET_TUNING, ...tuning }), indexBeyond('x'));
+      const { values } = await scanAll(written, 'x.parquet', inspection, ['x'], tuning);
+      assert.deepEqual(values.slice(0, 8), [1.5, 2.5, 3.5, 4.5, 1.5, 2.5, 3.5, 4.5]);
+    }
+  });
 
   it('spills the dictionary-encoded number columns of a share to scratch space, once, and reads the same values from it', async () => {
     const { DuckDBInstance } = await import('@duckdb/node-api');
