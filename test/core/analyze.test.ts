@@ -96,6 +96,26 @@ describe('analyze: the pipeline end to end', function () {
     assert.ok(report.timing.total >= report.timing.moments);
   });
 
+  it('lists the misclassified rows in file order up to the limit, past the first size of the list, and none with a limit of 0', async () => {
+    const table = pumpTable([800, 600, 1000]);
+    const all = await fit(table, { misclassifiedLimit: 10_000 });
+    assert.ok(all.misclassifiedTotal > 256, `${all.misclassifiedTotal} misclassified: enough to grow the list twice`);
+    assert.equal(all.misclassified.length, all.misclassifiedTotal);
+    all.misclassified.forEach((m, i) => {
+      assert.notEqual(m.label, m.predicted);
+      assert.equal(table.rows[m.row]![table.header.length - 1], m.label);
+      assert.equal(m.line, m.row + 2);
+      assert.ok(m.posterior > 0 && m.posterior <= 1, `posterior ${m.posterior}`);
+      if (i > 0) assert.ok(m.row > all.misclassified[i - 1]!.row, 'file order');
+    });
+    const some = await fit(table, { misclassifiedLimit: 150 });
+    assert.equal(some.misclassifiedTotal, all.misclassifiedTotal);
+    assert.deepEqual(some.misclassified, all.misclassified.slice(0, 150));
+    const none = await fit(table, { misclassifiedLimit: 0 });
+    assert.equal(none.misclassifiedTotal, all.misclassifiedTotal);
+    assert.deepEqual(none.misclassified, []);
+  });
+
   it('matches eigenvalues computed from the used rows by an independent dense route', async () => {
     let table = pumpTable([60, 45, 70], 5, 21);
     table = { ...table, rows: table.rows.map((r, i) => (i % 17 === 3 ? r.map((v, j) => (j === 2 ? 'NA' : v)) : r)) };
