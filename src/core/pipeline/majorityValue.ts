@@ -23,9 +23,9 @@ export class MajorityVote {
     for (let j = 0; j < d; j++) {
       const v = values[offset + j]!;
       const held = votes[j]!;
-      const same = candidates[j] === v;
-      candidates[j] = held === 0 ? v : candidates[j]!;
-      votes[j] = held === 0 ? 1 : held + (same ? 1 : -1);
+      const candidate = candidates[j]!;
+      candidates[j] = held === 0 ? v : candidate;
+      votes[j] = held === 0 ? 1 : held + (candidate === v ? 1 : -1);
     }
   }
 }

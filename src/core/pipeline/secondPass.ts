@@ -188,7 +188,8 @@ export function openSecondPass(input: Omit<SecondPassInput, keyof SecondPassShar
       const row = firstRow + i;
       const line = lines === undefined ? undefined : lines[i];
       if (judged !== truth) {
-        if (misclassifiedTotal++ < misclassifiedLimit) listMisclassified(row, line, truth, judged, logScores);
+        const index = misclassifiedTotal++;
+        if (index < misclassifiedLimit) listMisclassified(index, row, line, truth, judged, logScores);
       }
 
       sample.total++;
@@ -199,9 +200,10 @@ export function openSecondPass(input: Omit<SecondPassInput, keyof SecondPassShar
     }
   };
 
-  const listMisclassified = (row: number, line: number | undefined, truth: number, judged: number, logScores: boolean): void => {
+  /** Keeps the `index`-th misclassified row of the share (index < misclassifiedLimit). */
+  const listMisclassified = (index: number, row: number, line: number | undefined, truth: number, judged: number, logScores: boolean): void => {
     if (logScores) softmaxInPlace(posterior, K);
-    const at = 5 * (misclassifiedTotal - 1);
+    const at = 5 * index;
     if (at === listed.length) {
       const grown = new Float64Array(Math.min(2 * listed.length, 5 * misclassifiedLimit));
       grown.set(listed);
