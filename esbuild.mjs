@@ -44,9 +44,19 @@ const node = { platform: 'node', format: 'cjs', target: 'node20', plugins: [node
 // A deleted test must not keep running from a stale bundle.
 rmSync('out', { recursive: true, force: true });
 
+/**
+ * The host never reads a data file (its workers do): the readers, the analysis and the script
+ * writers stay out of its bundle, which the editor loads on activation, before the first answer.
+ */
+function checkHostBundle(result) {
+  const inputs = Object.keys(Object.values(result.metafile.outputs).find((output) => output.entryPoint)?.inputs ?? {});
+  const misplaced = inputs.filter((input) => /^src\/core\/(read\/index|analyze|tableMoments|scripts\/index)\.ts$|^node_modules\/(hyparquet|csv-parse)/.test(input));
+  if (misplaced.length > 0) throw new Error(`dist/extension.js must not bundle the readers or the analysis (the fit worker runs them): ${misplaced.slice(0, 5).join(', ')}${misplaced.length > 5 ? ` and ${misplaced.length - 5} more` : ''}`);
+}
+
 await Promise.all([
   // The VS Code host: `vscode` is provided by the editor at run time.
-  build({ ...node, entryPoints: { extension: 'src/extension/extension.ts' }, outdir: 'dist', external: ['vscode'] }),
+  build({ ...node, entryPoints: { extension: 'src/extension/extension.ts' }, outdir: 'dist', external: ['vscode'], metafile: true }).then(checkHostBundle),
   // The worker thread that runs fits off the host's event loop.
   build({ ...node, entryPoints: { worker: 'src/extension/worker.ts' }, outdir: 'dist' }),
   // The workers of the parallel row passes, started by the CLI and by the fit worker.

@@ -14,8 +14,8 @@ import type { FitFailure, FitRequest, FromWorker, WorkerTiming } from './workerP
 export interface FitJobListener {
   progress(phase: string, fraction: number): void;
   hashed(sha256: string): void;
-  /** Called for a provisional report (report.provisional) and for the final one. */
-  result(report: PanelReport, columns: ColumnChoice[], timing?: WorkerTiming): void;
+  /** Called for a provisional report (report.provisional) and for the final one, which carries the requested script (FitRequest.script). */
+  result(report: PanelReport, columns: ColumnChoice[], timing?: WorkerTiming, script?: string): void;
   failed(failure: FitFailure, columns?: ColumnChoice[]): void;
 }
 
@@ -90,7 +90,7 @@ export class FitWorkers {
           break;
         case 'result':
           if (!message.report.provisional && settle()) {
-            listener.result(message.report, message.columns, message.timing);
+            listener.result(message.report, message.columns, message.timing, message.script);
             void worker.terminate();
           } else if (message.report.provisional) {
             listener.result(message.report, message.columns, message.timing);

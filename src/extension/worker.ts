@@ -21,7 +21,8 @@ import { openFileSource } from '../node/fileSource';
 import { useScratchFolder } from '../node/scratchFiles';
 import { createParallelScanner } from '../node/parallelScan';
 import type { ColumnChoice } from '../shared/messages';
-import { packReport, sampleBuffers } from '../shared/packedSample';
+import { packReport, sampleBuffers, unpackReport } from '../shared/packedSample';
+import { fitScript } from './fitScript';
 import { FIRST_LOOK_PHASE, FULL_ANALYSIS_PHASE, FULL_ANALYSIS_ROLE, type FitFailure, type FitRequest, type FromWorker } from './workerProtocol';
 
 /** Epoch milliseconds, comparable with the host's (see WorkerTiming). */
@@ -126,7 +127,10 @@ async function run(request: FitRequest): Promise<void> {
     // one scan thread, the full analysis took 13.4 s after the first look in the same thread and
     // 10.0 s alone. (A table in memory stays here: it would be copied to the thread.)
     const answer = lookedFirst && !bytes ? await fullAnalysisInFreshThread(request, started) : await fullAnalysis(source, request, started);
-    if (answer.type === 'result') answer.report.source.sha256 = await hashing;
+    if (answer.type === 'result') {
+      answer.report.source.sha256 = await hashing;
+      if (request.script) answer.script = await fitScript(source, request.path, unpackReport(answer.report), request.script);
+    }
     post(answer);
   } catch (error) {
     post({ type: 'failed', failure: toFailure(error), columns: await columnsIfReadable(source, request) });

@@ -9,6 +9,7 @@
  * FromWorker messages (no 'hashed': the fit worker hashes the file meanwhile) and ends. Terminating
  * the fit worker stops that thread too (Node stops a thread's own workers with it).
  */
+import type { ScriptLanguage, SqlDialect } from '../core/scripts/index';
 import type { FitOptions } from '../core/types';
 import type { ColumnChoice, PanelReport } from '../shared/messages';
 
@@ -24,6 +25,17 @@ export interface FitRequest {
   scanThreads?: number;
   /** The fit's scratch folder (src/node/scratchFiles.ts): chosen by the host, which removes it when the fit's thread has ended. */
   scratchFolder?: string;
+  /** Also write this script for the finished fit (the "generate fit script" command): the final result carries its text. */
+  script?: ScriptChoice;
+}
+
+/** Which script the worker writes for a finished fit (src/extension/fitScript.ts). */
+export interface ScriptChoice {
+  language: ScriptLanguage;
+  /** Identifier and string quoting of the SQL query; `ansi` when not given. */
+  dialect?: SqlDialect;
+  /** Names the program and version in the script's header. */
+  generator: string;
 }
 
 /** A DataError (or an unexpected failure) in a form that survives structured cloning. */
@@ -56,7 +68,7 @@ export type FromWorker =
   | { type: 'progress'; phase: string; fraction: number }
   | { type: 'hashed'; sha256: string }
   /** The report's plot sample packed, its buffers transferred (src/shared/packedSample.ts). */
-  | { type: 'result'; report: PanelReport; columns: ColumnChoice[]; timing?: WorkerTiming }
+  | { type: 'result'; report: PanelReport; columns: ColumnChoice[]; timing?: WorkerTiming; script?: string }
   | { type: 'failed'; failure: FitFailure; columns?: ColumnChoice[] };
 
 /** The progress phases a worker reports: the first look at a large file's first bytes, then the full analysis. */

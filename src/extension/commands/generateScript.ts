@@ -1,7 +1,7 @@
 /**
  * `scatterwise.generateScript`: asks for a language (Python, R, or SQL and its dialect), fits the
- * file in a worker thread (as the editor does: never on the host's event loop), and opens the
- * generated script in a new untitled editor. Called from the palette (the active data file) or by
+ * file in a worker thread that also writes the script (as the editor does: the host's event loop
+ * never reads the data file), and opens the script in a new untitled editor. Called from the palette (the active data file) or by
  * the panel with the file's URI and its current options. The data file is only read.
  *
  * Arguments (all optional): the data file's URI, the panel's options, and `{ language, dialect }`
@@ -10,20 +10,14 @@
 import * as vscode from 'vscode';
 import { version } from '../../../package.json';
 import { DataError } from '../../core/errors';
-import { inspectTable } from '../../core/read/index';
-import { momentsQueryForTable, reproductionScript, screenedFeatures, shiftsFromMoments, SQL_DIALECTS, type SqlDialect } from '../../core/scripts/index';
-import { tableMoments } from '../../core/tableMoments';
-import type { FitOptions, FitReport } from '../../core/types';
-import { openFileSource } from '../../node/fileSource';
+import { SQL_DIALECTS, type SqlDialect } from '../../core/scripts/quoting';
+import type { FitOptions } from '../../core/types';
 import type { EditableOptions } from '../../shared/messages';
-import { unpackReport } from '../../shared/packedSample';
 import type { FitWorkers } from '../fitWorkers';
 import { readSettings } from '../settings';
+import type { ScriptChoice } from '../workerProtocol';
 
 export const GENERATE_SCRIPT_COMMAND = 'scatterwise.generateScript';
-
-/** Bytes read to estimate the means the SQL query shifts by (any value near the mean will do). */
-const SHIFT_ESTIMATE_BYTES = 4 * 1024 * 1024;
 
 type Language = 'python' | 'r' | 'sql';
 
@@ -43,16 +37,18 @@ function targetFile(passed: unknown): vscode.Uri | undefined {
   return vscode.window.activeTextEditor?.document.uri;
 }
 
-/** Fits the whole file in a worker; resolves to the final report (with the file's SHA-256). */
-function fitInWorker(workers: FitWorkers, path: string, options: Partial<FitOptions>, token: vscode.CancellationToken): Promise<FitReport> {
+/** Fits the whole file in a worker, which writes the script from that fit (src/extension/fitScript.ts); resolves to its text. */
+function scriptFromWorker(workers: FitWorkers, path: string, options: Partial<FitOptions>, script: ScriptChoice, token: vscode.CancellationToken): Promise<string> {
   return new Promise((resolve, reject) => {
     const job = workers.start(
-      { path, options, provisionalBytes: Number.MAX_SAFE_INTEGER },
+      { path, options, provisionalBytes: Number.MAX_SAFE_INTEGER, script },
       {
         progress: () => undefined,
         hashed: () => undefined,
-        result: (report) => {
-          if (!report.provisional) resolve(unpackReport(report));
+        result: (report, _columns, _timing, text) => {
+          if (report.provisional) return;
+          if (text === undefined) reject(new Error('the fit worker sent no script'));
+          else resolve(text);
         },
         failed: (failure) => reject(new DataError(failure.code, failure.message, failure.where ?? {}, failure.hint)),
       },
@@ -98,30 +94,10 @@ async function generate(workers: FitWorkers, passedUri: unknown, passedOptions: 
   }
   const panel = (passedOptions ?? {}) as Partial<EditableOptions>;
   const options: Partial<FitOptions> = { ...readSettings().options, ...Object.fromEntries(Object.entries(panel).filter(([, v]) => v !== undefined)) };
-  const path = uri.fsPath;
-  const generator = `Scatterwise ${version}`;
   const text = await vscode.window.withProgress(
     { location: vscode.ProgressLocation.Notification, title: `Scatterwise: fitting ${uri.path.split('/').pop()} for the ${language.label} script`, cancellable: true },
-    async (_progress, token) => {
-      const report = await fitInWorker(workers, path, options, token);
-      // The inspection reads the head of the file only (sniffed delimiter, header, column order).
-      const source = await openFileSource(path);
-      try {
-        const inspection = await inspectTable(source, report.options.read);
-        if (language.id !== 'sql') return reproductionScript(language.id, report, inspection, generator, path);
-        const features = screenedFeatures(report, inspection.columns.map((c) => c.name));
-        const head = await tableMoments(source, { ...report.options, features, label: report.label }, undefined, SHIFT_ESTIMATE_BYTES);
-        const table = uri.path.split('/').pop()!.replace(/\.[^.]*$/, '');
-        return momentsQueryForTable(report.label, features, shiftsFromMoments(head.moments, features), {
-          dialect: dialect!,
-          table,
-          generator,
-          fileDescription: `${report.source.name} (SHA-256 ${report.source.sha256 ?? 'not computed'})`,
-        });
-      } finally {
-        await source.close();
-      }
-    },
+    (_progress, token) =>
+      scriptFromWorker(workers, uri.fsPath, options, { language: language.id, ...(dialect ? { dialect } : {}), generator: `Scatterwise ${version}` }, token),
   );
   const document = await vscode.workspace.openTextDocument({ language: EDITOR_LANGUAGE[language.id], content: text });
   await vscode.window.showTextDocument(document, { preview: false });
