@@ -285,7 +285,7 @@ function framesMarkdown(frames: FrameTimes[]): string {
 
 function editorMarkdown(all: EditorFigures[]): string {
   return [
-    `**Editor (VS Code ${'1.100'} server build in headless Chromium)**: times are the median of ${all[0]?.runs ?? 1} run(s) per file, each in a fresh VS Code, the event-loop delay the worst run's; the provisional time runs until the host posts the answer to the panel`,
+    `**Editor (VS Code ${'1.100'} server build in headless Chromium)**: times are the median of ${all[0]?.runs ?? 1} run(s) per file, each in a fresh VS Code, the event-loop delay the worst run's; the provisional time runs from the open command, the extension's activation included, until the host posts the answer to the panel`,
     '',
     '| file | MB | provisional answer after s | rows in it | full fit s | host event-loop delay p99 ms | max ms |',
     '|---|---:|---:|---:|---:|---:|---:|',
