@@ -3,7 +3,8 @@
  * loop. Its request is its first message (the thread may be started before it is needed). It
  * opens the data file read-only, posts a provisional result from the first bytes of a large file,
  * hashes the bytes while the full analysis reads them (after a provisional result, in a thread of
- * its own: fullAnalysisInFreshThread), posts the full result, and ends. The host cancels by
+ * its own: fullAnalysisInFreshThread), posts the full result (with the script of the "generate fit
+ * script" command when the request asks for one: fitScript.ts), and ends. The host cancels by
  * terminating the thread, which stops any thread it started, so nothing here polls for cancellation.
  */
 import { createHash } from 'node:crypto';

@@ -1,7 +1,7 @@
 /**
  * `scatterwise.generateScript`: asks for a language (Python, R, or SQL and its dialect), fits the
- * file in a worker thread that also writes the script (as the editor does: the host's event loop
- * never reads the data file), and opens the script in a new untitled editor. Called from the palette (the active data file) or by
+ * file in a worker thread that also writes the script (the host never reads the data file), and
+ * opens the script in a new untitled editor. Called from the palette (the active data file) or by
  * the panel with the file's URI and its current options. The data file is only read.
  *
  * Arguments (all optional): the data file's URI, the panel's options, and `{ language, dialect }`
@@ -10,6 +10,7 @@
 import * as vscode from 'vscode';
 import { version } from '../../../package.json';
 import { DataError } from '../../core/errors';
+import type { ScriptLanguage } from '../../core/scripts/index';
 import { SQL_DIALECTS, type SqlDialect } from '../../core/scripts/quoting';
 import type { FitOptions } from '../../core/types';
 import type { EditableOptions } from '../../shared/messages';
@@ -19,15 +20,13 @@ import type { ScriptChoice } from '../workerProtocol';
 
 export const GENERATE_SCRIPT_COMMAND = 'scatterwise.generateScript';
 
-type Language = 'python' | 'r' | 'sql';
-
-const LANGUAGES: (vscode.QuickPickItem & { id: Language })[] = [
+const LANGUAGES: (vscode.QuickPickItem & { id: ScriptLanguage })[] = [
   { id: 'python', label: 'Python', description: 'pandas + scikit-learn: refits the file and checks the figures' },
   { id: 'r', label: 'R', description: 'base R + MASS: refits the file and checks the figures' },
   { id: 'sql', label: 'SQL', description: 'per-class moments computed in a database, for scatterwise fit --moments' },
 ];
 
-const EDITOR_LANGUAGE: Record<Language, string> = { python: 'python', r: 'r', sql: 'sql' };
+const EDITOR_LANGUAGE: Record<ScriptLanguage, string> = { python: 'python', r: 'r', sql: 'sql' };
 
 /** The data file the command is about: the one passed, else the active separability editor's or text editor's. */
 function targetFile(passed: unknown): vscode.Uri | undefined {
@@ -61,7 +60,7 @@ function scriptFromWorker(workers: FitWorkers, path: string, options: Partial<Fi
 }
 
 /** The language (and SQL dialect) passed by a caller, when valid. */
-function passedChoice(choice: unknown): { language: Language; dialect?: SqlDialect } | undefined {
+function passedChoice(choice: unknown): { language: ScriptLanguage; dialect?: SqlDialect } | undefined {
   if (typeof choice !== 'object' || choice === null) return undefined;
   const { language, dialect } = choice as { language?: unknown; dialect?: unknown };
   const known = LANGUAGES.find((l) => l.id === language);
