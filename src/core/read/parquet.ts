@@ -155,6 +155,18 @@ function columnError(error: unknown, name: string, column: string, row: number):
  * One column of a row group read a batch at a time: through a FlatColumnCursor, or for a column it
  * cannot read (not flat, in another file) through hyparquet's reader, the whole group at once.
  */
+/** Working memory for a cursor over `column`: what an earlier scan of the file left (returnBuffers), else new. */
+function takeBuffers(opened: OpenedParquet, column: string): ColumnBuffers {
+  return opened.spareBuffers.get(column)?.pop() ?? new ColumnBuffers();
+}
+
+/** A scan is done with `buffers` (its cursors finished): the next scan over `column` takes them. */
+function returnBuffers(opened: OpenedParquet, column: string, buffers: ColumnBuffers): void {
+  const spare = opened.spareBuffers.get(column);
+  if (spare) spare.push(buffers);
+  else opened.spareBuffers.set(column, [buffers]);
+}
+
 class ColumnRows {
   private chunks: ColumnData[] | null = null;
   private row = 0;
@@ -176,6 +188,11 @@ class ColumnRows {
     }
     const cursor = FlatColumnCursor.open(source, opened.metadata, group, column, compressors, tuning, kept.byOffset, buffers);
     return new ColumnRows(opened, source.name, column, groupStart, Number(group.num_rows), cursor);
+  }
+
+  /** The caller reads no more rows: the cursor's working memory goes back to its ColumnBuffers. */
+  finish(): void {
+    this.cursor?.finish();
   }
 
   /** Passes over the next `rows` rows of the group (the rows before a share's first). */
@@ -264,8 +281,16 @@ export async function inspectParquet(source: ByteSource, options: ReadOptions, c
     };
     // The first row group through a cursor when it holds the whole sample (only the sampled rows are decoded), else hyparquet's reader across groups.
     const firstGroup = opened.metadata.row_groups[0];
-    if (Number(firstGroup.num_rows) >= sampledRows) await ColumnRows.open(opened, source, firstGroup, 0, column.name, tuning).read(sampledRows, (piece, at) => forEachValue(piece, at, visit));
-    else forEachRow(await readColumnRows(opened, source.name, column.name, 0, sampledRows), 0, sampledRows, visit);
+    if (Number(firstGroup.num_rows) >= sampledRows) {
+      const buffers = takeBuffers(opened, column.name);
+      const rows = ColumnRows.open(opened, source, firstGroup, 0, column.name, tuning, buffers);
+      try {
+        await rows.read(sampledRows, (piece, at) => forEachValue(piece, at, visit));
+      } finally {
+        rows.finish();
+        returnBuffers(opened, column.name, buffers);
+      }
+    } else forEachRow(await readColumnRows(opened, source.name, column.name, 0, sampledRows), 0, sampledRows, visit);
     const summary = sample.summary();
     columns.push(summary.kind === 'empty' ? summary : { ...summary, kind: column.kind });
     progress.update(0);
@@ -453,7 +478,7 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
     column,
     slots: features.flatMap((feature, slot) => (feature.name === column ? [slot] : [])),
     label: label?.name === column,
-    buffers: opened.spareBuffers.get(column)?.pop() ?? new ColumnBuffers(),
+    buffers: takeBuffers(opened, column),
   }));
 
   const only = request.rows;
@@ -478,16 +503,13 @@ export async function scanParquet(request: ScanRequest, tuning: ParquetTuning = 
         if (from > groupStart) for (const { rows } of columns) await rows.skip(from - groupStart);
         await batch.readRows(columns, spilled, from, to);
       } finally {
+        for (const { rows } of columns) rows.finish();
         await spill?.reader.close();
       }
       groupStart = groupEnd;
     }
   } finally {
-    for (const { column, buffers } of targets) {
-      const spare = opened.spareBuffers.get(column);
-      if (spare) spare.push(buffers);
-      else opened.spareBuffers.set(column, [buffers]);
-    }
+    for (const { column, buffers } of targets) returnBuffers(opened, column, buffers);
   }
   progress.finish();
 

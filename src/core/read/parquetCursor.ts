@@ -171,6 +171,7 @@ export class FlatColumnCursor {
   private whole: WholePage | null = null;
   private streamed: StreamedPage | null = null;
   private rowsDone = 0;
+  private finished = false;
 
   private constructor(
     private readonly source: ByteSource,
@@ -197,8 +198,24 @@ export class FlatColumnCursor {
 
   /** The chunk's rows are all read: its buffers go to the next cursor over the same column. */
   private release(): void {
-    if (this.rowsDone < this.rows) return;
+    if (this.rowsDone < this.rows || this.finished) return;
     this.buffers.window = this.window.buffer;
+  }
+
+  /**
+   * The caller reads no more rows (a provisional answer's limit, an inspection's sample, the end of
+   * a share): the read window and a streamed page's decompression buffer go to the next cursor over
+   * the column, as when the chunk ends. Without this, every pass of a first look over a large row
+   * group took fresh memory for both, for every column (on this kind of machine, fresh pages cost
+   * ~11 µs each to touch). Nothing may be read from the cursor after it.
+   */
+  finish(): void {
+    if (this.finished) return;
+    this.finished = true;
+    this.buffers.window = this.window.buffer;
+    if (this.streamed) this.keepSnappy(this.streamed.bytes);
+    this.streamed = null;
+    this.whole = null;
   }
 
   /** A streamed page's decompression buffer, kept for the next page. */

@@ -7,6 +7,7 @@ import { strict as assert } from 'node:assert';
 import { parquetMetadata } from 'hyparquet';
 import { parquetHeader } from 'hyparquet/src/column.js';
 import { parquetWriteBuffer } from 'hyparquet-writer';
+import { compressors } from 'hyparquet-compressors';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -14,6 +15,7 @@ import { analyze } from '../../../src/core/analyze';
 import { CancelledError, DataError } from '../../../src/core/errors';
 import { inspectTable, scanTable } from '../../../src/core/read/index';
 import { adoptParquetDictionaries, DEFAULT_PARQUET_TUNING, scanParquet, shareParquetDictionaries, type ParquetTuning } from '../../../src/core/read/parquet';
+import { ColumnBuffers, FlatColumnCursor } from '../../../src/core/read/parquetCursor';
 import { memoryScratchSpace, ScratchUnavailable, useScratchSpace, type ScratchSpace } from '../../../src/core/read/scratch';
 import type { ScanSummary, TableInspection } from '../../../src/core/read/types';
 import { memorySource, type ByteSource, type Progress } from '../../../src/core/source';
@@ -652,5 +654,43 @@ describe('parquet: one row group of large pages (DuckDB)', function () {
     await adoptParquetDictionaries(adopting, structuredClone(shared));
     const rest = await scanAll(bytes, 'first-look.parquet', inspection, ['reading'], { batchRows: 4096 }, { start: 900_000, end: expected.length }, adopting);
     assert.deepEqual(rest.values, expected.slice(900_000));
+  });
+  it('a cursor finished before its chunk ends leaves its read window and decompression buffer to the next cursor over the column', async () => {
+    const { DuckDBInstance } = await import('@duckdb/node-api');
+    const connection = await (await DuckDBInstance.create(':memory:')).connect();
+    const path = join(folder, 'finish.parquet');
+    // Distinct readings (no dictionary), one row group, pages large enough to be streamed.
+    await connection.run(`CREATE TABLE pumps AS SELECT (i * 0.37 + 1e-3 * (i % 7))::DOUBLE AS reading FROM range(300000) t(i)`);
+    await connection.run(`COPY pumps TO '${path}' (FORMAT parquet, COMPRESSION snappy, ROW_GROUP_SIZE 10000000)`);
+    const expected = (await connection.runAndReadAll(`SELECT reading FROM read_parquet('${path}')`)).getRows().map((row) => Number(row[0]));
+    connection.closeSync();
+    const bytes = new Uint8Array(readFileSync(path));
+    const metadata = parquetMetadata(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);
+    const group = metadata.row_groups[0]!;
+    assert.equal(metadata.row_groups.length, 1);
+    const source = memorySource('finish.parquet', bytes);
+    const read = async (cursor: FlatColumnCursor, rows: number): Promise<number[]> => {
+      const values: number[] = [];
+      while (values.length < rows) {
+        const piece = await cursor.next(rows - values.length);
+        assert.equal(piece.levels, null);
+        for (let i = 0; i < piece.rows; i++) values.push(Number(piece.values![piece.valueStart + i]));
+      }
+      return values;
+    };
+    const buffers = new ColumnBuffers();
+    // A first look: the first 1 000 rows, then the caller is done.
+    const first = FlatColumnCursor.open(source, metadata, group, 'reading', compressors, DEFAULT_PARQUET_TUNING, undefined, buffers)!;
+    assert.deepEqual(await read(first, 1000), expected.slice(0, 1000));
+    assert.equal(buffers.window, null, 'the window is the cursor\'s while it reads');
+    first.finish();
+    const window = buffers.window as Uint8Array | null; // (read back after the assertion above narrowed it)
+    assert.ok(window && window.length > 0, 'finishing hands the read window back');
+    assert.ok((buffers.snappy as Uint8Array | null)?.length, 'and the streamed page\'s decompression buffer');
+    // The next pass reads the whole chunk in that memory, from its start.
+    const second = FlatColumnCursor.open(source, metadata, group, 'reading', compressors, DEFAULT_PARQUET_TUNING, undefined, buffers)!;
+    assert.equal(buffers.window, null, 'the next cursor took the window');
+    assert.deepEqual(await read(second, expected.length), expected);
+    assert.equal(buffers.window, window, 'and gave the same memory back at the chunk\'s end');
   });
 });
