@@ -151,10 +151,6 @@ function columnError(error: unknown, name: string, column: string, row: number):
   );
 }
 
-/**
- * One column of a row group read a batch at a time: through a FlatColumnCursor, or for a column it
- * cannot read (not flat, in another file) through hyparquet's reader, the whole group at once.
- */
 /** Working memory for a cursor over `column`: what an earlier scan of the file left (returnBuffers), else new. */
 function takeBuffers(opened: OpenedParquet, column: string): ColumnBuffers {
   return opened.spareBuffers.get(column)?.pop() ?? new ColumnBuffers();
@@ -167,6 +163,10 @@ function returnBuffers(opened: OpenedParquet, column: string, buffers: ColumnBuf
   else opened.spareBuffers.set(column, [buffers]);
 }
 
+/**
+ * One column of a row group read a batch at a time: through a FlatColumnCursor, or for a column it
+ * cannot read (not flat, in another file) through hyparquet's reader, the whole group at once.
+ */
 class ColumnRows {
   private chunks: ColumnData[] | null = null;
   private row = 0;
